@@ -1,0 +1,2 @@
+//! The `finwake` command line.
+fn main() {}
