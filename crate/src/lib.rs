@@ -33,6 +33,8 @@ pub mod sim;
 pub mod summary;
 pub mod validate;
 pub mod water;
+#[cfg(feature = "wasm")]
+pub mod wasm;
 
 pub use case::{Case, Flow, Foil, Numerics};
 pub use error::CaseError;
