@@ -110,9 +110,10 @@ impl Default for Numerics {
 }
 
 impl Case {
-    /// Parses a case from JSON text and validates it.
+    /// Parses a case from JSON text and validates it: syntax, keys and types (with field paths),
+    /// then ranges (see [`crate::validate`]).
     pub fn from_json(text: &str) -> Result<Case, CaseError> {
-        let case: Case = serde_json::from_str(text).map_err(CaseError::from_serde)?;
+        let case = crate::validate::parse_case(text)?;
         case.validate()?;
         Ok(case)
     }
