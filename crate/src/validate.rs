@@ -782,7 +782,8 @@ pub fn validate_case(case: &Case) -> Result<(), CaseError> {
 
 fn validate_numerics(case: &Case) -> Result<(), CaseError> {
     let num = &case.numerics;
-    let panels_ok = (PANELS_RANGE.0..=PANELS_RANGE.1).contains(&num.panels) && num.panels.is_multiple_of(2);
+    let panels_ok =
+        (PANELS_RANGE.0..=PANELS_RANGE.1).contains(&num.panels) && num.panels.is_multiple_of(2);
     if !panels_ok {
         return Err(CaseError::new(
             "numerics.panels",

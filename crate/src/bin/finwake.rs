@@ -12,7 +12,7 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use clap::{Args, Parser, Subcommand};
-use finwake::{Case, CaseError, Simulation, Summary, Water};
+use finwake::{Case, CaseError, FoilSummary, Simulation, Summary, Water};
 
 /// Exit status for bad input (arguments, case file, output paths).
 const EXIT_BAD_INPUT: u8 = 2;
@@ -179,21 +179,32 @@ fn write_history(sim: &Simulation, mut out: impl Write) -> io::Result<()> {
     writeln!(out, "{HISTORY_HEADER}")?;
     let dt = sim.time_step();
     for (step, loads) in sim.history().iter().enumerate() {
-        let time = step as f64 * dt;
+        let time = csv(step as f64 * dt);
         for (foil, l) in loads.iter().enumerate() {
             writeln!(
                 out,
                 "{time},{foil},{},{},{},{},{},{}",
-                l.heave,
-                l.pitch,
-                l.lift_coefficient,
-                l.thrust_coefficient,
-                l.moment_coefficient,
-                l.power_coefficient
+                csv(l.heave),
+                csv(l.pitch),
+                csv(l.lift_coefficient),
+                csv(l.thrust_coefficient),
+                csv(l.moment_coefficient),
+                csv(l.power_coefficient)
             )?;
         }
     }
     out.flush()
+}
+
+/// `v` in full precision (shortest text that reads back to the same number), plain for
+/// ordinary magnitudes and in exponent form for very small or very large ones.
+fn csv(v: f64) -> String {
+    let a = v.abs();
+    if a == 0.0 || (1e-4..1e15).contains(&a) || !v.is_finite() {
+        format!("{v}")
+    } else {
+        format!("{v:e}")
+    }
 }
 
 /// `v` with about four significant digits, in plain notation where that stays short.
@@ -231,9 +242,9 @@ fn write_table(out: &mut impl Write, shown: &str, case: &Case, s: &Summary) -> i
         out,
         "{n} foil{}, U = {} m/s, f = {} Hz, {water} at {} deg C: density {} kg/m^3, kinematic viscosity {} m^2/s",
         if n == 1 { "" } else { "s" },
-        num(case.flow.speed),
-        num(case.frequency),
-        num(case.flow.temperature),
+        case.flow.speed,
+        case.frequency,
+        case.flow.temperature,
         num(s.density),
         num(s.kinematic_viscosity)
     )?;
@@ -241,14 +252,14 @@ fn write_table(out: &mut impl Write, shown: &str, case: &Case, s: &Summary) -> i
     if case.frequency > 0.0 {
         let first = s.first_cycle_averaged + 1;
         let last = s.first_cycle_averaged + s.cycles_averaged;
-        let ramp = if s.ramp_cycles[1] > s.ramp_cycles[0] {
-            format!(
-                "smooth start over cycles {} to {}",
+        let ramp = match s.ramp_cycles[1].saturating_sub(s.ramp_cycles[0]) {
+            0 => "no smooth start".to_string(),
+            1 => format!("smooth start in cycle {}", s.ramp_cycles[1]),
+            _ => format!(
+                "smooth start in cycles {} to {}",
                 s.ramp_cycles[0] + 1,
                 s.ramp_cycles[1]
-            )
-        } else {
-            "no smooth start".to_string()
+            ),
         };
         writeln!(
             out,
@@ -278,99 +289,113 @@ fn write_table(out: &mut impl Write, shown: &str, case: &Case, s: &Summary) -> i
     header.extend((0..n).map(|i| format!("foil {i}")));
     header.push("total".to_string());
 
-    let dash = || "-".to_string();
-    let per_foil =
-        |f: &dyn Fn(&finwake::FoilSummary) -> String| s.foils.iter().map(f).collect::<Vec<_>>();
-    let mut rows: Vec<(String, String, Vec<String>, String)> = Vec::new();
-    let mut row = |name: &str, unit: &str, cells: Vec<String>, total: String| {
-        rows.push((name.to_string(), unit.to_string(), cells, total));
+    // For a start from rest the values are those at the end of the run, not cycle means.
+    let m = if case.frequency > 0.0 {
+        "mean"
+    } else {
+        "final"
     };
     let t = &s.total;
-    row(
-        "mean thrust",
-        "N",
-        per_foil(&|f| num(f.thrust)),
-        num(t.thrust),
-    );
-    row(
-        "thrust coefficient C_T",
-        "-",
-        per_foil(&|f| num(f.thrust_coefficient)),
-        num(t.thrust_coefficient),
-    );
-    row(
-        "mean lift coefficient C_L",
-        "-",
-        per_foil(&|f| num(f.lift_coefficient)),
-        dash(),
-    );
-    row(
-        "lift coefficient amplitude",
-        "-",
-        per_foil(&|f| num(f.lift_amplitude)),
-        dash(),
-    );
-    row(
-        "mean moment coefficient C_M (pivot)",
-        "-",
-        per_foil(&|f| num(f.moment_coefficient)),
-        dash(),
-    );
-    row(
-        "mean input power",
-        "W",
-        per_foil(&|f| num(f.power)),
-        num(t.power),
-    );
-    row(
-        "power coefficient C_P",
-        "-",
-        per_foil(&|f| num(f.power_coefficient)),
-        num(t.power_coefficient),
-    );
-    row(
-        "propulsive efficiency",
-        "%",
-        per_foil(&|f| percent(f.efficiency)),
-        percent(t.efficiency),
-    );
-    row("peak lift", "N", per_foil(&|f| num(f.peak_lift)), dash());
-    row(
-        "peak torque (about pivot)",
-        "N m",
-        per_foil(&|f| num(f.peak_torque)),
-        dash(),
-    );
-    row(
-        "max angle of attack (pivot)",
-        "deg",
-        per_foil(&|f| num(f.max_angle_of_attack)),
-        dash(),
-    );
-    row(
-        "Strouhal f A / U (TE peak-to-peak)",
-        "-",
-        per_foil(&|f| num(f.strouhal)),
-        dash(),
-    );
-    row(
-        "Strouhal 2 f h0 / U (heave)",
-        "-",
-        per_foil(&|f| num(f.strouhal_heave)),
-        dash(),
-    );
-    row(
-        "reduced frequency pi f c / U",
-        "-",
-        per_foil(&|f| num(f.reduced_frequency)),
-        dash(),
-    );
-    row(
-        "Reynolds number U c / nu",
-        "-",
-        per_foil(&|f| num(f.reynolds)),
-        dash(),
-    );
+    type Cell = fn(&FoilSummary) -> String;
+    let table: Vec<(String, &str, Cell, Option<String>)> = vec![
+        (
+            format!("{m} thrust"),
+            "N",
+            |f| num(f.thrust),
+            Some(num(t.thrust)),
+        ),
+        (
+            format!("{m} thrust coefficient C_T"),
+            "-",
+            |f| num(f.thrust_coefficient),
+            Some(num(t.thrust_coefficient)),
+        ),
+        (
+            format!("{m} lift coefficient C_L"),
+            "-",
+            |f| num(f.lift_coefficient),
+            None,
+        ),
+        (
+            "lift coefficient amplitude".into(),
+            "-",
+            |f| num(f.lift_amplitude),
+            None,
+        ),
+        (
+            format!("{m} moment coefficient C_M (pivot)"),
+            "-",
+            |f| num(f.moment_coefficient),
+            None,
+        ),
+        (
+            format!("{m} input power"),
+            "W",
+            |f| num(f.power),
+            Some(num(t.power)),
+        ),
+        (
+            format!("{m} power coefficient C_P"),
+            "-",
+            |f| num(f.power_coefficient),
+            Some(num(t.power_coefficient)),
+        ),
+        (
+            "propulsive efficiency".into(),
+            "%",
+            |f| percent(f.efficiency),
+            Some(percent(t.efficiency)),
+        ),
+        ("peak lift".into(), "N", |f| num(f.peak_lift), None),
+        (
+            "peak torque (about pivot)".into(),
+            "N m",
+            |f| num(f.peak_torque),
+            None,
+        ),
+        (
+            "max angle of attack (pivot)".into(),
+            "deg",
+            |f| num(f.max_angle_of_attack),
+            None,
+        ),
+        (
+            "Strouhal f A / U (TE peak-to-peak)".into(),
+            "-",
+            |f| num(f.strouhal),
+            None,
+        ),
+        (
+            "Strouhal 2 f h0 / U (heave)".into(),
+            "-",
+            |f| num(f.strouhal_heave),
+            None,
+        ),
+        (
+            "reduced frequency pi f c / U".into(),
+            "-",
+            |f| num(f.reduced_frequency),
+            None,
+        ),
+        (
+            "Reynolds number U c / nu".into(),
+            "-",
+            |f| num(f.reynolds),
+            None,
+        ),
+    ];
+    let rows: Vec<(String, String, Vec<String>, String)> = table
+        .into_iter()
+        .map(|(name, unit, cell, total)| {
+            let cells = s.foils.iter().map(cell).collect();
+            (
+                name,
+                unit.to_string(),
+                cells,
+                total.unwrap_or_else(|| "-".to_string()),
+            )
+        })
+        .collect();
 
     let name_w = rows
         .iter()
@@ -408,7 +433,7 @@ fn write_table(out: &mut impl Write, shown: &str, case: &Case, s: &Summary) -> i
     writeln!(out)?;
     writeln!(
         out,
-        "Loads and power are 2D inviscid screening estimates, not design loads: no viscosity, stall, 3D or free-surface effects; confirm with measurement before sizing rigs."
+        "Loads and power are 2D inviscid screening estimates, not design loads (hydrodynamic only: no viscosity, stall, 3D or free-surface effects, no inertia of moving parts); size rigs with margins per lab safety rules and local codes, and confirm by measurement."
     )?;
     writeln!(
         out,
