@@ -164,6 +164,17 @@ fn unwritable_history_path_is_bad_input() {
 // Runs (need the solver).
 
 #[test]
+fn overlapping_foils_are_bad_input() {
+    // Hind leading edge 5 cm behind the fore leading edge: inside the 10 cm fore chord.
+    let dir = scratch("overlap");
+    let mut case: Value = serde_json::from_str(TANDEM).unwrap();
+    case["foils"][1]["x"] = serde_json::json!(0.05);
+    let path = write(&dir, "case.json", &case.to_string());
+    let err = assert_bad_input(&finwake(&["simulate", &path]));
+    assert!(err.contains("foils.1") && err.contains("overlap"), "{err}");
+}
+
+#[test]
 fn simulate_prints_the_table() {
     let dir = scratch("table");
     let case = write(&dir, "case.json", &small(SINGLE, 2, 40));
