@@ -946,8 +946,8 @@ fn water_properties_match_reference_table() {
     //   margin for the two salinity scales.
     // - viscosity: the reference has 5 significant digits (<= 0.006 % rounding); the
     //   Landolt-Boernstein formula is within 0.07 % of IAPWS-2008, and seawater applies the same
-    //   Sharqawy et al. 2010 factor as the reference, so 0.2 % (the ITTC-style tolerance of
-    //   common practice for tank work; towing-tank Re is quoted to 3 digits).
+    //   Sharqawy et al. 2010 factor as the reference, so 0.2 % (the notes' suggested tolerance,
+    //   common practice: about three times the formula's deviation).
     // - vapour pressure: the reference is rounded to 0.1 Pa; the Wagner & Pruss equation is within
     //   0.2 Pa of IAPWS-IF97 here, so 1 Pa or 0.1 %, whichever is larger.
     let rows = reference_table();
