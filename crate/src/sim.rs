@@ -1,8 +1,34 @@
 //! The time-stepping simulation: panels on every foil, one linear system per step, a free wake.
+//!
+//! Method (Katz & Plotkin 2001, Low-Speed Aerodynamics, ch. 11 and 13): constant-strength source
+//! and doublet panels on each foil with the Dirichlet condition of zero perturbation potential
+//! inside every foil; the source strengths carry the no-penetration condition. Each trailing edge
+//! carries a short doublet panel whose strength is the potential jump at the trailing edge (the
+//! Kutta condition of Morino); at its far end a point vortex of the previous step's bound
+//! circulation closes the older wake, so the vortex shed each step is the change of bound
+//! circulation (Kelvin's theorem). Shed vortices become free Krasny blobs, convected with the
+//! second-order Adams-Bashforth scheme. Pressures come from the unsteady Bernoulli equation with
+//! the surface potential differentiated in time by second-order backward differences.
+
+use nalgebra::{DMatrix, DVector};
 
 use crate::case::Case;
 use crate::error::CaseError;
+use crate::geometry;
+use crate::kernels;
+use crate::kinematics::{Motion, Pose};
 use crate::summary::Summary;
+use crate::water;
+
+/// Fraction of the trailing edge's travel relative to the water over one step at which the newest
+/// shed vortex is placed. Katz & Plotkin (2001, section 13.8) recommend 0.2 to 0.3 for a
+/// lumped-vortex wake; 0.3 reproduces Wagner's lift growth within 1 % from two semichords on (the
+/// validation tests), where 0.5 is 2 % high.
+pub const SHED_FRACTION: f64 = 0.3;
+
+/// Chords behind its trailing edge over which a foil's newest shed vortices are treated as a
+/// chain of doublet panels in the solve (the near wake); beyond, they act through their flux.
+pub const NEAR_WAKE_CHORDS: f64 = 0.3;
 
 /// Loads and pose of one foil at one instant.
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
@@ -29,45 +55,961 @@ pub struct FoilLoads {
     pub moment: f64,
     /// W. Input power (actuators to fluid).
     pub power: f64,
+    /// m^2/s. Bound circulation, counter-clockwise positive (lift = -rho U circulation when steady).
+    pub circulation: f64,
+}
+
+/// One foil's geometry, motion and solver state.
+#[derive(Debug, Clone)]
+struct Body {
+    chord: f64,
+    span: f64,
+    pivot: f64,
+    motion: Motion,
+    /// Chord units, clockwise from the trailing edge, first = last.
+    section: Vec<[f64; 2]>,
+    /// Unknown index of this body's first panel.
+    offset: usize,
+    /// Doublet and source influence of this body's panels on its own collocation points
+    /// (row = collocation point, column = panel). Rigid motion leaves them unchanged.
+    self_doublet: DMatrix<f64>,
+    self_source: DMatrix<f64>,
+    /// LU factors of `self_doublet` (single-foil fast path), made on first use.
+    lu: Option<nalgebra::LU<f64, nalgebra::Dyn, nalgebra::Dyn>>,
+    /// m. Arc length from the trailing edge (lower side) to each collocation point.
+    arc: Vec<f64>,
+    // World geometry at the current instant.
+    pose: Pose,
+    nodes: Vec<[f64; 2]>,
+    mids: Vec<[f64; 2]>,
+    tangents: Vec<[f64; 2]>,
+    normals: Vec<[f64; 2]>,
+    lengths: Vec<f64>,
+    velocities: Vec<[f64; 2]>,
+    // Solution state.
+    sigma: Vec<f64>,
+    mu: Vec<f64>,
+    circulation: f64,
+    phi_prev: Vec<f64>,
+    phi_prev2: Vec<f64>,
+    shed_point: [f64; 2],
+}
+
+impl Body {
+    fn panels(&self) -> usize {
+        self.section.len() - 1
+    }
+
+    fn trailing_edge(&self) -> [f64; 2] {
+        self.nodes[0]
+    }
+
+    fn set_pose(&mut self, pose: Pose) {
+        self.pose = pose;
+        for (w, s) in self.nodes.iter_mut().zip(&self.section) {
+            *w = pose.to_world(*s, self.chord, self.pivot);
+        }
+        let n = self.panels();
+        for j in 0..n {
+            let (a, b) = (self.nodes[j], self.nodes[j + 1]);
+            let d = [b[0] - a[0], b[1] - a[1]];
+            let l = (d[0] * d[0] + d[1] * d[1]).sqrt();
+            let t = [d[0] / l, d[1] / l];
+            self.lengths[j] = l;
+            self.tangents[j] = t;
+            self.normals[j] = [-t[1], t[0]];
+            self.mids[j] = [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
+            self.velocities[j] = pose.velocity_at(self.mids[j]);
+        }
+    }
+
+    /// World outline polygon of this body at pose `pose`.
+    fn outline_at(&self, pose: &Pose) -> Vec<[f64; 2]> {
+        self.section
+            .iter()
+            .map(|s| pose.to_world(*s, self.chord, self.pivot))
+            .collect()
+    }
+}
+
+fn new_body(foil: &crate::case::Foil, frequency: f64, ramp_time: f64, panels: usize) -> Body {
+    let section = geometry::symmetric_section(foil.thickness, panels);
+    new_body_from_section(
+        section,
+        foil.chord,
+        foil.span,
+        foil.pivot,
+        Motion::new(foil, frequency, ramp_time),
+    )
+}
+
+fn new_body_from_section(
+    section: Vec<[f64; 2]>,
+    chord: f64,
+    span: f64,
+    pivot: f64,
+    motion: Motion,
+) -> Body {
+    let n = section.len() - 1;
+    let mut body = Body {
+        chord,
+        span,
+        pivot,
+        motion,
+        section,
+        offset: 0,
+        self_doublet: DMatrix::zeros(n, n),
+        self_source: DMatrix::zeros(n, n),
+        lu: None,
+        arc: vec![0.0; n],
+        pose: motion.pose(0.0),
+        nodes: vec![[0.0; 2]; n + 1],
+        mids: vec![[0.0; 2]; n],
+        tangents: vec![[0.0; 2]; n],
+        normals: vec![[0.0; 2]; n],
+        lengths: vec![0.0; n],
+        velocities: vec![[0.0; 2]; n],
+        sigma: vec![0.0; n],
+        mu: vec![0.0; n],
+        circulation: 0.0,
+        phi_prev: vec![0.0; n],
+        phi_prev2: vec![0.0; n],
+        shed_point: [0.0; 2],
+    };
+    body.set_pose(motion.pose(0.0));
+    let mut s = 0.0;
+    for j in 0..n {
+        body.arc[j] = s + 0.5 * body.lengths[j];
+        s += body.lengths[j];
+    }
+    for j in 0..n {
+        for k in 0..n {
+            let (a, b) = (body.nodes[k], body.nodes[k + 1]);
+            if j == k {
+                // Inside limit of the panel's own doublet; the source potential is continuous.
+                body.self_doublet[(j, k)] = -0.5;
+                body.self_source[(j, k)] = kernels::source_self_potential(body.lengths[k]);
+            } else {
+                body.self_doublet[(j, k)] = kernels::doublet_potential(a, b, body.mids[j]);
+                body.self_source[(j, k)] = kernels::source_potential(a, b, body.mids[j]);
+            }
+        }
+    }
+    body
+}
+
+/// Free wake particles (Krasny blobs), structure of arrays, oldest first.
+#[derive(Debug, Clone, Default)]
+struct Wake {
+    x: Vec<f64>,
+    y: Vec<f64>,
+    gamma: Vec<f64>,
+    /// m/s. Velocity at the previous step (for Adams-Bashforth), NaN for a new particle.
+    u_prev: Vec<[f64; 2]>,
+    owner: Vec<usize>,
+}
+
+impl Wake {
+    fn len(&self) -> usize {
+        self.x.len()
+    }
+
+    fn push(&mut self, p: [f64; 2], gamma: f64, owner: usize) {
+        self.x.push(p[0]);
+        self.y.push(p[1]);
+        self.gamma.push(gamma);
+        self.u_prev.push([f64::NAN; 2]);
+        self.owner.push(owner);
+    }
+
+    /// m/s. Velocity induced at `p` by all particles (direct Biot-Savart sum of blobs).
+    fn velocity(&self, p: [f64; 2], delta_sq: f64) -> [f64; 2] {
+        let mut u = [0.0; 2];
+        for i in 0..self.x.len() {
+            let v = kernels::blob_velocity([self.x[i], self.y[i]], self.gamma[i], delta_sq, p);
+            u[0] += v[0];
+            u[1] += v[1];
+        }
+        u
+    }
+
+    /// Merges the oldest same-sign neighbours of the same foil, pairwise, until at most
+    /// nine tenths of `cap` particles remain. Circulation and its first moment are conserved.
+    fn coarsen(&mut self, cap: usize, foils: usize) {
+        if self.len() <= cap {
+            return;
+        }
+        let target = self.len() - cap * 9 / 10;
+        let mut removed = 0;
+        let mut keep = vec![true; self.len()];
+        let mut pending: Vec<Option<usize>> = vec![None; foils];
+        for i in 0..self.len() {
+            if removed >= target {
+                break;
+            }
+            let o = self.owner[i];
+            match pending[o] {
+                Some(j) if self.gamma[j] * self.gamma[i] > 0.0 => {
+                    let (gi, gj) = (self.gamma[i], self.gamma[j]);
+                    let g = gi + gj;
+                    self.x[j] = (gj * self.x[j] + gi * self.x[i]) / g;
+                    self.y[j] = (gj * self.y[j] + gi * self.y[i]) / g;
+                    let (ui, uj) = (self.u_prev[i], self.u_prev[j]);
+                    self.u_prev[j] = [(gj * uj[0] + gi * ui[0]) / g, (gj * uj[1] + gi * ui[1]) / g];
+                    self.gamma[j] = g;
+                    keep[i] = false;
+                    removed += 1;
+                    pending[o] = None;
+                }
+                _ => pending[o] = Some(i),
+            }
+        }
+        let mut k = 0;
+        for i in 0..self.len() {
+            if keep[i] {
+                self.x[k] = self.x[i];
+                self.y[k] = self.y[i];
+                self.gamma[k] = self.gamma[i];
+                self.u_prev[k] = self.u_prev[i];
+                self.owner[k] = self.owner[i];
+                k += 1;
+            }
+        }
+        self.x.truncate(k);
+        self.y.truncate(k);
+        self.gamma.truncate(k);
+        self.u_prev.truncate(k);
+        self.owner.truncate(k);
+    }
 }
 
 /// A running simulation of one case.
 #[derive(Debug, Clone)]
 pub struct Simulation {
     case: Case,
+    bodies: Vec<Body>,
+    wake: Wake,
+    speed: f64,
+    density: f64,
+    dt: f64,
+    total_steps: usize,
+    steps: usize,
+    delta_sq: f64,
+    cap: usize,
+    history: Vec<Vec<FoilLoads>>,
+    impulse: Vec<[f64; 2]>,
+    /// Near-wake doublet panels of the current step: start, end (m), strength (m^2/s).
+    chain_panels: Vec<([f64; 2], [f64; 2], f64)>,
 }
 
 impl Simulation {
     /// Builds the foils and checks that they never overlap or touch during their motion.
     pub fn new(case: &Case) -> Result<Simulation, CaseError> {
         case.validate()?;
-        Ok(Simulation { case: case.clone() })
+        let num = &case.numerics;
+        let speed = case.flow.speed;
+        let c0 = case.foils[0].chord;
+        let (dt, total_steps, ramp_time) = if case.frequency > 0.0 {
+            let period = 1.0 / case.frequency;
+            let dt = period / num.steps_per_cycle as f64;
+            (
+                dt,
+                num.steps_per_cycle * num.cycles,
+                num.ramp_cycles * period,
+            )
+        } else {
+            let dt = num.time_step.unwrap_or(0.02 * c0 / speed);
+            let duration = num.duration.unwrap_or(20.0 * c0 / speed);
+            (dt, (duration / dt).round().max(1.0) as usize, 0.0)
+        };
+        let mut bodies: Vec<Body> = case
+            .foils
+            .iter()
+            .map(|f| new_body(f, case.frequency, ramp_time, num.panels))
+            .collect();
+        let mut offset = 0;
+        for b in &mut bodies {
+            b.offset = offset;
+            offset += b.panels();
+        }
+        check_clearance(case, &bodies)?;
+        let min_chord = case
+            .foils
+            .iter()
+            .map(|f| f.chord)
+            .fold(f64::INFINITY, f64::min);
+        let delta = num.core_size * min_chord;
+        let props = water::properties(case.flow.water, case.flow.temperature);
+        Ok(Simulation {
+            case: case.clone(),
+            bodies,
+            wake: Wake::default(),
+            speed,
+            density: props.density,
+            dt,
+            total_steps,
+            steps: 0,
+            delta_sq: delta * delta,
+            cap: num.max_particles,
+            history: Vec::with_capacity(total_steps),
+            impulse: Vec::with_capacity(total_steps),
+            chain_panels: Vec::new(),
+        })
     }
+
     /// The case being run.
-    pub fn case(&self) -> &Case { &self.case }
-    /// Advances one time step (solve, loads, wake convection). Does nothing once finished.
-    pub fn step(&mut self) { todo!() }
-    /// Runs the remaining steps and returns the summary.
-    pub fn run_to_end(&mut self) -> Summary { todo!() }
+    pub fn case(&self) -> &Case {
+        &self.case
+    }
+
     /// True once all steps of the case have been taken.
-    pub fn is_finished(&self) -> bool { todo!() }
-    /// s. Time of the latest solved instant.
-    pub fn time(&self) -> f64 { todo!() }
+    pub fn is_finished(&self) -> bool {
+        self.steps >= self.total_steps
+    }
+
+    /// s. Time of the latest solved instant (step `steps_taken() - 1`).
+    pub fn time(&self) -> f64 {
+        self.steps.saturating_sub(1) as f64 * self.dt
+    }
+
     /// s. Time step.
-    pub fn time_step(&self) -> f64 { todo!() }
+    pub fn time_step(&self) -> f64 {
+        self.dt
+    }
+
     /// Steps taken so far.
-    pub fn steps_taken(&self) -> usize { todo!() }
+    pub fn steps_taken(&self) -> usize {
+        self.steps
+    }
+
     /// Steps the case asks for in all.
-    pub fn total_steps(&self) -> usize { todo!() }
+    pub fn total_steps(&self) -> usize {
+        self.total_steps
+    }
+
     /// Free wake particles: x (m), y (m), circulation (m^2/s, counter-clockwise positive).
-    pub fn particles(&self) -> (&[f64], &[f64], &[f64]) { todo!() }
-    /// m. Outline of foil `i` at the latest instant: closed polygon from the trailing edge along
-    /// the lower surface to the leading edge and back along the upper surface, as [x, y] pairs.
-    pub fn foil_outline(&self, i: usize) -> Vec<[f64; 2]> { let _ = i; todo!() }
-    /// Loads of every foil at the latest solved instant.
-    pub fn loads(&self) -> &[FoilLoads] { todo!() }
-    /// Loads of every step so far: `history()[step][foil]`, with times `step * time_step()`.
-    pub fn history(&self) -> &[Vec<FoilLoads>] { todo!() }
+    /// Positions are at the start of the next step (after convection).
+    pub fn particles(&self) -> (&[f64], &[f64], &[f64]) {
+        (&self.wake.x, &self.wake.y, &self.wake.gamma)
+    }
+
+    /// m. Outline of foil `i` at the latest solved instant: closed polygon from the trailing
+    /// edge along the lower surface to the leading edge and back along the upper surface.
+    pub fn foil_outline(&self, i: usize) -> Vec<[f64; 2]> {
+        self.bodies[i].nodes.clone()
+    }
+
+    /// Loads of every foil at the latest solved instant (empty before the first step).
+    pub fn loads(&self) -> &[FoilLoads] {
+        self.history.last().map(|v| v.as_slice()).unwrap_or(&[])
+    }
+
+    /// Loads of every step so far: `history()[step][foil]`, at times `step * time_step()`.
+    pub fn history(&self) -> &[Vec<FoilLoads>] {
+        &self.history
+    }
+
+    /// m^2/s^2 per (kg/m^3). Total vortex impulse per unit density, `sum Gamma (y, -x)` over the
+    /// bound and free vorticity, after each step. The force on all foils together is
+    /// `-rho d/dt` of it (Saffman 1992, ch. 3), up to terms with zero mean over a cycle.
+    pub fn impulse_history(&self) -> &[[f64; 2]] {
+        &self.impulse
+    }
+
+    /// Sum of all circulation: bound plus free (m^2/s); zero by Kelvin's theorem.
+    pub fn total_circulation(&self) -> f64 {
+        self.bodies.iter().map(|b| b.circulation).sum::<f64>() + self.wake.gamma.iter().sum::<f64>()
+    }
+
+    /// Runs the remaining steps and returns the summary.
+    pub fn run_to_end(&mut self) -> Summary {
+        while !self.is_finished() {
+            self.step();
+        }
+        self.summary()
+    }
+
     /// Statistics of the steps taken so far (whole cycles after the transient).
-    pub fn summary(&self) -> Summary { todo!() }
+    pub fn summary(&self) -> Summary {
+        crate::summary::summarise(self)
+    }
+
+    pub(crate) fn density(&self) -> f64 {
+        self.density
+    }
+
+    pub(crate) fn particle_cap(&self) -> usize {
+        self.cap
+    }
+
+    /// Advances one time step (solve, loads, wake convection). Does nothing once finished.
+    pub fn step(&mut self) {
+        if self.is_finished() {
+            return;
+        }
+        let n = self.steps;
+        let t = n as f64 * self.dt;
+        let u_inf = [self.speed, 0.0];
+        for b in &mut self.bodies {
+            let pose = b.motion.pose(t);
+            b.set_pose(pose);
+        }
+        // Newest shed point behind each trailing edge.
+        for b in &mut self.bodies {
+            let te = b.trailing_edge();
+            let uw = self.wake.velocity(te, self.delta_sq);
+            let vte = b.pose.velocity_at(te);
+            let rel = [u_inf[0] + uw[0] - vte[0], u_inf[1] + uw[1] - vte[1]];
+            b.shed_point = [
+                te[0] + SHED_FRACTION * rel[0] * self.dt,
+                te[1] + SHED_FRACTION * rel[1] * self.dt,
+            ];
+        }
+        // The newest particles of each foil near its trailing edge form a chain of doublet
+        // panels from the shed point (the near wake, as in Katz & Plotkin 2001, section 13.12):
+        // their potential enters the Dirichlet condition exactly. The chain ends in a closing
+        // point vortex, and every other particle acts through its volume flux on each panel.
+        let prev_circulation: Vec<f64> = self.bodies.iter().map(|b| b.circulation).collect();
+        let chains = self.near_wake_chains();
+        let mut in_chain = vec![false; self.wake.len()];
+        let mut closures: Vec<([f64; 2], f64)> = Vec::with_capacity(self.bodies.len());
+        let mut chain_panels: Vec<([f64; 2], [f64; 2], f64)> = Vec::new();
+        for (bi, chain) in chains.iter().enumerate() {
+            let mut start = self.bodies[bi].shed_point;
+            let mut m = -prev_circulation[bi];
+            for &i in chain {
+                in_chain[i] = true;
+                let end = [self.wake.x[i], self.wake.y[i]];
+                chain_panels.push((start, end, m));
+                m -= self.wake.gamma[i];
+                start = end;
+            }
+            // The closing vortex carries the rest of the older wake's circulation.
+            closures.push((start, -m));
+        }
+        let free: Vec<usize> = (0..self.wake.len()).filter(|&i| !in_chain[i]).collect();
+        let free_velocity = |p: [f64; 2], wake: &Wake, delta_sq: f64| {
+            let mut u = [0.0; 2];
+            for &i in &free {
+                let v = kernels::blob_velocity([wake.x[i], wake.y[i]], wake.gamma[i], delta_sq, p);
+                u[0] += v[0];
+                u[1] += v[1];
+            }
+            u
+        };
+        let mut onset_phi: Vec<Vec<f64>> = Vec::with_capacity(self.bodies.len());
+        for b in &mut self.bodies {
+            let npan = b.panels();
+            let psi: Vec<f64> = b
+                .nodes
+                .iter()
+                .map(|&p| {
+                    let mut s = 0.0;
+                    for &i in &free {
+                        s += kernels::blob_stream_function(
+                            [self.wake.x[i], self.wake.y[i]],
+                            self.wake.gamma[i],
+                            self.delta_sq,
+                            p,
+                        );
+                    }
+                    for &(c, g) in &closures {
+                        s += kernels::blob_stream_function(c, g, 0.0, p);
+                    }
+                    s
+                })
+                .collect();
+            let un: Vec<[f64; 2]> = b
+                .nodes
+                .iter()
+                .map(|&p| free_velocity(p, &self.wake, self.delta_sq))
+                .collect();
+            let um: Vec<[f64; 2]> = b
+                .mids
+                .iter()
+                .map(|&p| free_velocity(p, &self.wake, self.delta_sq))
+                .collect();
+            let mut phi = vec![0.0; npan];
+            let mut acc = 0.0;
+            for j in 0..npan {
+                let v = b.velocities[j];
+                let nn = b.normals[j];
+                let flux = psi[j] - psi[j + 1];
+                b.sigma[j] =
+                    nn[0] * (v[0] - u_inf[0]) + nn[1] * (v[1] - u_inf[1]) - flux / b.lengths[j];
+                // Free blobs: trapezoid rule on half panels. Point vortices: exact angle.
+                let tt = b.tangents[j];
+                let half = 0.5 * b.lengths[j];
+                let ut_node = un[j][0] * tt[0] + un[j][1] * tt[1];
+                let ut_mid = um[j][0] * tt[0] + um[j][1] * tt[1];
+                let ut_next = un[j + 1][0] * tt[0] + un[j + 1][1] * tt[1];
+                let mut exact_a = 0.0;
+                let mut exact_b = 0.0;
+                for &(c, g) in &closures {
+                    exact_a += g * kernels::doublet_potential(b.nodes[j], b.mids[j], c);
+                    exact_b += g * kernels::doublet_potential(b.mids[j], b.nodes[j + 1], c);
+                }
+                acc += 0.5 * half * (ut_node + ut_mid) + exact_a;
+                phi[j] = acc;
+                acc += 0.5 * half * (ut_mid + ut_next) + exact_b;
+            }
+            onset_phi.push(phi);
+        }
+        self.chain_panels = chain_panels;
+        self.solve();
+        // Loads.
+        let q = 0.5 * self.density * self.speed * self.speed;
+        let mut row = Vec::with_capacity(self.bodies.len());
+        for (bi, b) in self.bodies.iter_mut().enumerate() {
+            let npan = b.panels();
+            // Total surface potential: doublet strength (the foils' own perturbation potential)
+            // plus the onset potential; its arc-length derivative is the tangential velocity.
+            let phi: Vec<f64> =
+                b.mu.iter()
+                    .zip(&onset_phi[bi])
+                    .map(|(m, o)| m + o)
+                    .collect();
+            let dphi = surface_derivative(&phi, &b.arc);
+            let (mut cfx, mut cfy, mut cm, mut cp_pow) = (0.0, 0.0, 0.0, 0.0);
+            let u2 = self.speed * self.speed;
+            for j in 0..npan {
+                let dphidt = match n {
+                    0 => 0.0,
+                    1 => (phi[j] - b.phi_prev[j]) / self.dt,
+                    _ => (3.0 * phi[j] - 4.0 * b.phi_prev[j] + b.phi_prev2[j]) / (2.0 * self.dt),
+                };
+                let tt = b.tangents[j];
+                let v = b.velocities[j];
+                let qt = (u_inf[0] - v[0]) * tt[0] + (u_inf[1] - v[1]) * tt[1] + dphi[j];
+                let vref2 = (u_inf[0] - v[0]).powi(2) + (u_inf[1] - v[1]).powi(2);
+                let cp = (vref2 - qt * qt - 2.0 * dphidt) / u2;
+                let nn = b.normals[j];
+                let l = b.lengths[j];
+                let f = [-cp * nn[0] * l, -cp * nn[1] * l];
+                cfx += f[0];
+                cfy += f[1];
+                let r = [
+                    b.mids[j][0] - b.pose.pivot[0],
+                    b.mids[j][1] - b.pose.pivot[1],
+                ];
+                cm -= r[0] * f[1] - r[1] * f[0];
+                cp_pow += cp * l * (nn[0] * v[0] + nn[1] * v[1]);
+            }
+            b.phi_prev2 = std::mem::replace(&mut b.phi_prev, phi);
+            let c = b.chord;
+            let lift_c = cfy / c;
+            let thrust_c = -cfx / c;
+            let moment_c = cm / (c * c);
+            let power_c = cp_pow / (self.speed * c);
+            let area = c * b.span;
+            let rest = b.motion.pose(t);
+            row.push(FoilLoads {
+                heave: rest.pivot[1] - b.motion.pivot_mean[1],
+                pitch: rest.theta.to_degrees(),
+                angle_of_attack: b.motion.angle_of_attack(t, self.speed).to_degrees(),
+                lift_coefficient: lift_c,
+                thrust_coefficient: thrust_c,
+                moment_coefficient: moment_c,
+                power_coefficient: power_c,
+                lift: lift_c * q * area,
+                thrust: thrust_c * q * area,
+                moment: moment_c * q * area * c,
+                power: power_c * q * self.speed * area,
+                circulation: b.circulation,
+            });
+        }
+        self.history.push(row);
+        // Shed: the change of bound circulation becomes a free blob at the shed point.
+        for (bi, b) in self.bodies.iter().enumerate() {
+            let prev = prev_circulation[bi];
+            self.wake.push(b.shed_point, prev - b.circulation, bi);
+        }
+        self.impulse.push(self.vortex_impulse());
+        self.convect(t);
+        self.wake.coarsen(self.cap, self.bodies.len());
+        self.steps += 1;
+    }
+
+    /// Indices of each foil's near-wake particles, newest first: consecutive particles of that foil
+    /// within [`NEAR_WAKE_CHORDS`] chords of its trailing edge and clear of every other foil.
+    fn near_wake_chains(&self) -> Vec<Vec<usize>> {
+        let boxes: Vec<([f64; 2], [f64; 2])> = self
+            .bodies
+            .iter()
+            .map(|b| bounding_box(&b.nodes, 0.1 * b.chord))
+            .collect();
+        let mut chains = vec![Vec::new(); self.bodies.len()];
+        let mut open = vec![true; self.bodies.len()];
+        for i in (0..self.wake.len()).rev() {
+            let o = self.wake.owner[i];
+            if !open[o] {
+                if open.iter().all(|x| !x) {
+                    break;
+                }
+                continue;
+            }
+            let b = &self.bodies[o];
+            let p = [self.wake.x[i], self.wake.y[i]];
+            let te = b.trailing_edge();
+            let far = (p[0] - te[0]).powi(2) + (p[1] - te[1]).powi(2)
+                > (NEAR_WAKE_CHORDS * b.chord).powi(2);
+            let near_other = boxes.iter().enumerate().any(|(k, (lo, hi))| {
+                k != o && p[0] >= lo[0] && p[0] <= hi[0] && p[1] >= lo[1] && p[1] <= hi[1]
+            });
+            if far || near_other {
+                open[o] = false;
+            } else {
+                chains[o].push(i);
+            }
+        }
+        chains
+    }
+
+    /// Assembles and solves the Dirichlet system for all doublet strengths at once.
+    fn solve(&mut self) {
+        if self.bodies.len() == 1 {
+            self.solve_single();
+            return;
+        }
+        let m: usize = self.bodies.iter().map(|b| b.panels()).sum();
+        let mut a = DMatrix::<f64>::zeros(m, m);
+        let mut rhs = DVector::<f64>::zeros(m);
+        for (pi, p) in self.bodies.iter().enumerate() {
+            for (qi, q) in self.bodies.iter().enumerate() {
+                let np = p.panels();
+                let nq = q.panels();
+                for j in 0..np {
+                    let row = p.offset + j;
+                    let mut src = 0.0;
+                    if pi == qi {
+                        for k in 0..nq {
+                            a[(row, q.offset + k)] = p.self_doublet[(j, k)];
+                            src += p.self_source[(j, k)] * q.sigma[k];
+                        }
+                    } else {
+                        let x = p.mids[j];
+                        for k in 0..nq {
+                            let (na, nb) = (q.nodes[k], q.nodes[k + 1]);
+                            a[(row, q.offset + k)] = kernels::doublet_potential(na, nb, x);
+                            src += kernels::source_potential(na, nb, x) * q.sigma[k];
+                        }
+                    }
+                    rhs[row] -= src;
+                    if qi == 0 {
+                        for &(ca, cb, m) in &self.chain_panels {
+                            rhs[row] -= m * kernels::doublet_potential(ca, cb, p.mids[j]);
+                        }
+                    }
+                    // Trailing-edge doublet panel of q, strength mu_last - mu_first (Kutta).
+                    let w = kernels::doublet_potential(q.trailing_edge(), q.shed_point, p.mids[j]);
+                    a[(row, q.offset + nq - 1)] += w;
+                    a[(row, q.offset)] -= w;
+                }
+            }
+        }
+        let x = a
+            .lu()
+            .solve(&rhs)
+            .expect("the panel system is non-singular for separated foils");
+        for b in &mut self.bodies {
+            let n = b.panels();
+            for j in 0..n {
+                b.mu[j] = x[b.offset + j];
+            }
+            b.circulation = b.mu[0] - b.mu[n - 1];
+        }
+    }
+
+    /// One foil: the doublet matrix is constant in the body frame, so its LU factors are kept and
+    /// the trailing-edge panel (a rank-one change) is added by the Sherman-Morrison formula.
+    fn solve_single(&mut self) {
+        let b = &mut self.bodies[0];
+        let n = b.panels();
+        if b.lu.is_none() {
+            b.lu = Some(b.self_doublet.clone().lu());
+        }
+        let lu = b.lu.as_ref().expect("factored above");
+        let mut rhs = DVector::<f64>::zeros(n);
+        let mut w = DVector::<f64>::zeros(n);
+        let sigma = DVector::from_column_slice(&b.sigma);
+        let src = &b.self_source * &sigma;
+        for j in 0..n {
+            let mut r = -src[j];
+            for &(ca, cb, m) in &self.chain_panels {
+                r -= m * kernels::doublet_potential(ca, cb, b.mids[j]);
+            }
+            rhs[j] = r;
+            w[j] = kernels::doublet_potential(b.nodes[0], b.shed_point, b.mids[j]);
+        }
+        let y = lu.solve(&rhs).expect("the panel system is non-singular");
+        let z = lu.solve(&w).expect("the panel system is non-singular");
+        let vy = y[n - 1] - y[0];
+        let vz = z[n - 1] - z[0];
+        let x = y - z * (vy / (1.0 + vz));
+        for j in 0..n {
+            b.mu[j] = x[j];
+        }
+        b.circulation = b.mu[0] - b.mu[n - 1];
+    }
+
+    fn vortex_impulse(&self) -> [f64; 2] {
+        let mut imp = [0.0; 2];
+        for i in 0..self.wake.len() {
+            imp[0] += self.wake.gamma[i] * self.wake.y[i];
+            imp[1] -= self.wake.gamma[i] * self.wake.x[i];
+        }
+        for b in &self.bodies {
+            let n = b.panels();
+            for k in 1..n {
+                let g = b.mu[k - 1] - b.mu[k];
+                imp[0] += g * b.nodes[k][1];
+                imp[1] -= g * b.nodes[k][0];
+            }
+        }
+        imp
+    }
+
+    /// m/s. Velocity at `p` from the free stream, the foils (nodal vortices of the doublet
+    /// panels and the source panels) and the wake.
+    fn velocity_at(&self, p: [f64; 2]) -> [f64; 2] {
+        let mut u = self.wake.velocity(p, self.delta_sq);
+        u[0] += self.speed;
+        for b in &self.bodies {
+            let n = b.panels();
+            for k in 1..n {
+                let g = b.mu[k - 1] - b.mu[k];
+                let v = kernels::blob_velocity(b.nodes[k], g, self.delta_sq, p);
+                u[0] += v[0];
+                u[1] += v[1];
+            }
+            for k in 0..n {
+                let m = b.mids[k];
+                let l = b.lengths[k];
+                let d2 = (p[0] - m[0]).powi(2) + (p[1] - m[1]).powi(2);
+                // Far from a panel its source acts as a point source; the neglected quadrupole
+                // term is below (l / r)^2 / 12 = 0.1 % of the panel's contribution at r > 8 l.
+                let v = if d2 > 64.0 * l * l {
+                    kernels::point_source_velocity(m, b.sigma[k] * l, 0.0, p)
+                } else {
+                    let v = kernels::source_velocity(b.nodes[k], b.nodes[k + 1], p);
+                    [v[0] * b.sigma[k], v[1] * b.sigma[k]]
+                };
+                u[0] += v[0];
+                u[1] += v[1];
+            }
+        }
+        u
+    }
+
+    /// Moves the wake to the next instant (Adams-Bashforth 2; Euler for a new particle) and puts
+    /// back outside any particle that ended inside a foil or within a quarter core of its surface.
+    fn convect(&mut self, t: f64) {
+        let np = self.wake.len();
+        let vel: Vec<[f64; 2]> = (0..np)
+            .map(|i| self.velocity_at([self.wake.x[i], self.wake.y[i]]))
+            .collect();
+        for i in 0..np {
+            let u = vel[i];
+            let up = self.wake.u_prev[i];
+            let step = if up[0].is_nan() {
+                u
+            } else {
+                [1.5 * u[0] - 0.5 * up[0], 1.5 * u[1] - 0.5 * up[1]]
+            };
+            self.wake.x[i] += self.dt * step[0];
+            self.wake.y[i] += self.dt * step[1];
+            self.wake.u_prev[i] = u;
+        }
+        let t_next = t + self.dt;
+        let margin = 0.25 * self.delta_sq.sqrt();
+        for b in &self.bodies {
+            let pose = b.motion.pose(t_next);
+            let outline = b.outline_at(&pose);
+            let (lo, hi) = bounding_box(&outline, margin);
+            for i in 0..np {
+                let p = [self.wake.x[i], self.wake.y[i]];
+                if p[0] < lo[0] || p[0] > hi[0] || p[1] < lo[1] || p[1] > hi[1] {
+                    continue;
+                }
+                let inside = geometry::inside_polygon(&outline, p);
+                let (qp, edge, dist) = geometry::nearest_on_polygon(&outline, p);
+                if inside || dist < margin {
+                    let (a, bb) = (outline[edge], outline[edge + 1]);
+                    let d = [bb[0] - a[0], bb[1] - a[1]];
+                    let l = (d[0] * d[0] + d[1] * d[1]).sqrt();
+                    let nrm = [-d[1] / l, d[0] / l];
+                    self.wake.x[i] = qp[0] + margin * nrm[0];
+                    self.wake.y[i] = qp[1] + margin * nrm[1];
+                }
+            }
+        }
+    }
+}
+
+fn bounding_box(pts: &[[f64; 2]], margin: f64) -> ([f64; 2], [f64; 2]) {
+    let mut lo = [f64::INFINITY; 2];
+    let mut hi = [f64::NEG_INFINITY; 2];
+    for p in pts {
+        lo = [lo[0].min(p[0]), lo[1].min(p[1])];
+        hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+    }
+    (
+        [lo[0] - margin, lo[1] - margin],
+        [hi[0] + margin, hi[1] + margin],
+    )
+}
+
+/// Derivative along the surface of values at collocation points, second-order on the non-uniform
+/// arc-length grid; one-sided at the two trailing-edge panels (the potential jumps across the TE).
+fn surface_derivative(f: &[f64], s: &[f64]) -> Vec<f64> {
+    let n = f.len();
+    let mut d = vec![0.0; n];
+    for j in 1..n - 1 {
+        let h1 = s[j] - s[j - 1];
+        let h2 = s[j + 1] - s[j];
+        d[j] = -h2 / (h1 * (h1 + h2)) * f[j - 1]
+            + (h2 - h1) / (h1 * h2) * f[j]
+            + h1 / (h2 * (h1 + h2)) * f[j + 1];
+    }
+    let (h1, h2) = (s[1] - s[0], s[2] - s[1]);
+    d[0] = -(2.0 * h1 + h2) / (h1 * (h1 + h2)) * f[0] + (h1 + h2) / (h1 * h2) * f[1]
+        - h1 / (h2 * (h1 + h2)) * f[2];
+    let (h1, h2) = (s[n - 2] - s[n - 3], s[n - 1] - s[n - 2]);
+    d[n - 1] = h2 / (h1 * (h1 + h2)) * f[n - 3] - (h1 + h2) / (h1 * h2) * f[n - 2]
+        + (2.0 * h2 + h1) / (h2 * (h1 + h2)) * f[n - 1];
+    d
+}
+
+/// Checks that no two foils come closer than a thousandth of the smaller chord at any of 256
+/// instants over a cycle (and during the smooth start).
+fn check_clearance(case: &Case, bodies: &[Body]) -> Result<(), CaseError> {
+    if bodies.len() < 2 {
+        return Ok(());
+    }
+    let period = if case.frequency > 0.0 {
+        1.0 / case.frequency
+    } else {
+        0.0
+    };
+    let ramp = bodies[0].motion.ramp_time;
+    let samples = if period > 0.0 { 256 } else { 1 };
+    let mut times: Vec<f64> = (0..samples)
+        .map(|i| ramp + period * i as f64 / samples as f64)
+        .collect();
+    if ramp > 0.0 {
+        times.extend((0..64).map(|i| ramp * i as f64 / 64.0));
+    }
+    for i in 0..bodies.len() {
+        for j in i + 1..bodies.len() {
+            let (bi, bj) = (&bodies[i], &bodies[j]);
+            let limit = 1e-3 * bi.chord.min(bj.chord);
+            for &t in &times {
+                let (pi, pj) = (bi.motion.pose(t), bj.motion.pose(t));
+                let reach = bi.chord + bj.chord;
+                let dx = pi.pivot[0] - pj.pivot[0];
+                let dy = pi.pivot[1] - pj.pivot[1];
+                if dx * dx + dy * dy > reach * reach {
+                    continue;
+                }
+                let d = geometry::polygon_distance(&bi.outline_at(&pi), &bj.outline_at(&pj));
+                if d <= limit {
+                    return Err(CaseError::new(
+                        format!("foils.{j}"),
+                        format!("x = {} m, y = {} m", case.foils[j].x, case.foils[j].y),
+                        format!("positions where foils {i} and {j} stay at least {limit:.2e} m apart at every instant"),
+                        format!(
+                            "foils {i} and {j} {} at t = {t:.4} s; move foil {j} further away (foils.{j}.x or foils.{j}.y) or reduce the heave and pitch amplitudes",
+                            if d == 0.0 { "overlap" } else { "touch" }
+                        ),
+                    ));
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+/// Result of a steady solution on an arbitrary closed section.
+#[derive(Debug, Clone)]
+pub struct SteadySolution {
+    /// m. Collocation points (panel midpoints).
+    pub points: Vec<[f64; 2]>,
+    /// Pressure coefficient at each collocation point.
+    pub cp: Vec<f64>,
+    /// Lift coefficient from integrated pressure (per unit chord `chord`).
+    pub lift_coefficient: f64,
+    /// Lift coefficient from the Kutta-Joukowski theorem, `-2 Gamma / (U c)`.
+    pub lift_coefficient_circulation: f64,
+}
+
+/// Steady flow at speed 1 and angle of attack `alpha` (rad) about the closed section `nodes`
+/// (clockwise from the trailing edge, first = last, metres), with chord `chord` for the
+/// coefficients. The wake is a straight doublet panel along the free stream, 10^5 chords long.
+/// This is the same panel discretisation the time-stepping solver uses.
+pub fn steady_solution(nodes: &[[f64; 2]], chord: f64, alpha: f64) -> SteadySolution {
+    let motion = Motion {
+        omega: 0.0,
+        heave: 0.0,
+        pitch: 0.0,
+        pitch_mean: 0.0,
+        pitch_lead: 0.0,
+        phase: 0.0,
+        pivot_mean: [0.0, 0.0],
+        ramp_time: 0.0,
+    };
+    // Nodes are given in metres; a chord of 1 with the pivot at 0 keeps them as they are.
+    let mut b = new_body_from_section(nodes.to_vec(), 1.0, 1.0, 0.0, motion);
+    let n = b.panels();
+    let u_inf = [alpha.cos(), alpha.sin()];
+    for j in 0..n {
+        b.sigma[j] = -(b.normals[j][0] * u_inf[0] + b.normals[j][1] * u_inf[1]);
+    }
+    let te = b.trailing_edge();
+    let far = [
+        te[0] + 1e5 * chord * u_inf[0],
+        te[1] + 1e5 * chord * u_inf[1],
+    ];
+    let mut a = b.self_doublet.clone();
+    let mut rhs = DVector::<f64>::zeros(n);
+    for j in 0..n {
+        let mut s = 0.0;
+        for k in 0..n {
+            s += b.self_source[(j, k)] * b.sigma[k];
+        }
+        rhs[j] = -s;
+        let w = kernels::doublet_potential(te, far, b.mids[j]);
+        a[(j, n - 1)] += w;
+        a[(j, 0)] -= w;
+    }
+    let mu = a
+        .lu()
+        .solve(&rhs)
+        .expect("steady panel system is non-singular");
+    let muv: Vec<f64> = mu.iter().copied().collect();
+    let dmu = surface_derivative(&muv, &b.arc);
+    let mut cp = vec![0.0; n];
+    let (mut fx, mut fy) = (0.0, 0.0);
+    for j in 0..n {
+        let t = b.tangents[j];
+        let qt = u_inf[0] * t[0] + u_inf[1] * t[1] + dmu[j];
+        cp[j] = 1.0 - qt * qt;
+        fx -= cp[j] * b.normals[j][0] * b.lengths[j];
+        fy -= cp[j] * b.normals[j][1] * b.lengths[j];
+    }
+    let lift = (-fx * u_inf[1] + fy * u_inf[0]) / chord;
+    let gamma = muv[0] - muv[n - 1];
+    SteadySolution {
+        points: b.mids.clone(),
+        cp,
+        lift_coefficient: lift,
+        lift_coefficient_circulation: -2.0 * gamma / chord,
+    }
+}
+
+/// Motions of the foils of `case` (for kinematic statistics).
+pub(crate) fn case_motions(sim: &Simulation) -> Vec<(Motion, f64, f64)> {
+    sim.bodies
+        .iter()
+        .map(|b| (b.motion, b.chord, b.pivot))
+        .collect()
 }

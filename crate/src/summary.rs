@@ -86,3 +86,145 @@ pub struct Summary {
     /// m^2/s. Water kinematic viscosity used.
     pub kinematic_viscosity: f64,
 }
+
+/// Computes the summary of `sim` from its load history.
+pub(crate) fn summarise(sim: &crate::sim::Simulation) -> Summary {
+    use crate::kinematics;
+    let case = sim.case();
+    let hist = sim.history();
+    let nf = case.foils.len();
+    let speed = case.flow.speed;
+    let rho = sim.density();
+    let props = crate::water::properties(case.flow.water, case.flow.temperature);
+    let q = 0.5 * rho * speed * speed;
+    let oscillating = case.frequency > 0.0;
+    let spc = case.numerics.steps_per_cycle;
+    let done_cycles = if oscillating { hist.len() / spc } else { 0 };
+    let ramp_end = if oscillating {
+        case.numerics.ramp_cycles.ceil() as usize
+    } else {
+        0
+    };
+    let first = ramp_end.max(case.numerics.cycles / 2);
+    let (lo, hi, cycles_averaged, first_cycle) = if oscillating {
+        if done_cycles > first {
+            (first * spc, done_cycles * spc, done_cycles - first, first)
+        } else if done_cycles > 0 {
+            // Not enough cycles yet: the last complete one.
+            (
+                (done_cycles - 1) * spc,
+                done_cycles * spc,
+                1,
+                done_cycles - 1,
+            )
+        } else {
+            (0, hist.len(), 0, 0)
+        }
+    } else {
+        (hist.len().saturating_sub(1), hist.len(), 0, 0)
+    };
+    let motions = crate::sim::case_motions(sim);
+    let omega = 2.0 * std::f64::consts::PI * case.frequency;
+    let dt = sim.time_step();
+    let mean = |f: &dyn Fn(&crate::sim::FoilLoads) -> f64, i: usize, a: usize, b: usize| -> f64 {
+        if b <= a {
+            return f64::NAN;
+        }
+        hist[a..b].iter().map(|r| f(&r[i])).sum::<f64>() / (b - a) as f64
+    };
+    let mut foils = Vec::with_capacity(nf);
+    let mut converged = oscillating && cycles_averaged >= 2;
+    for (i, foil) in case.foils.iter().enumerate() {
+        let ct = mean(&|l| l.thrust_coefficient, i, lo, hi);
+        let cl = mean(&|l| l.lift_coefficient, i, lo, hi);
+        let cm = mean(&|l| l.moment_coefficient, i, lo, hi);
+        let cpw = mean(&|l| l.power_coefficient, i, lo, hi);
+        let (mut a, mut b) = (0.0, 0.0);
+        if oscillating && hi > lo {
+            for (k, r) in hist[lo..hi].iter().enumerate() {
+                let t = (lo + k) as f64 * dt;
+                a += r[i].lift_coefficient * (omega * t).sin();
+                b += r[i].lift_coefficient * (omega * t).cos();
+            }
+            a *= 2.0 / (hi - lo) as f64;
+            b *= 2.0 / (hi - lo) as f64;
+        }
+        let slice = if hi > lo { &hist[lo..hi] } else { &hist[0..0] };
+        let peak_lift = slice.iter().map(|r| r[i].lift.abs()).fold(0.0, f64::max);
+        let peak_torque = slice.iter().map(|r| r[i].moment.abs()).fold(0.0, f64::max);
+        let (motion, chord, pivot) = motions[i];
+        let area = chord * foil.span;
+        if oscillating && cycles_averaged >= 2 {
+            let (c1, c2) = ((done_cycles - 2) * spc, (done_cycles - 1) * spc);
+            let t1 = mean(&|l| l.thrust_coefficient, i, c1, c2);
+            let t2 = mean(&|l| l.thrust_coefficient, i, c2, c2 + spc);
+            let p1 = mean(&|l| l.power_coefficient, i, c1, c2);
+            let p2 = mean(&|l| l.power_coefficient, i, c2, c2 + spc);
+            let scale = ct.abs().max(cpw.abs()).max(0.01);
+            if (t1 - t2).abs() > 0.01 * scale || (p1 - p2).abs() > 0.01 * scale {
+                converged = false;
+            }
+        }
+        if !oscillating {
+            let n = hist.len();
+            let k = n - n / 10 - 1;
+            let (l0, l1) = (
+                hist[k.min(n - 1)][i].lift_coefficient,
+                hist[n - 1][i].lift_coefficient,
+            );
+            converged = n >= 10 && (l1 - l0).abs() <= 0.01 * l1.abs().max(1e-3);
+        }
+        foils.push(FoilSummary {
+            thrust_coefficient: ct,
+            lift_coefficient: cl,
+            lift_amplitude: (a * a + b * b).sqrt(),
+            lift_phase: b.atan2(a).to_degrees(),
+            moment_coefficient: cm,
+            power_coefficient: cpw,
+            efficiency: if ct > 0.0 && cpw > 0.0 {
+                Some(ct / cpw)
+            } else {
+                None
+            },
+            thrust: ct * q * area,
+            power: cpw * q * speed * area,
+            peak_lift,
+            peak_torque,
+            max_angle_of_attack: kinematics::max_angle_of_attack(&motion, speed).to_degrees(),
+            strouhal: case.frequency * kinematics::trailing_edge_excursion(&motion, chord, pivot)
+                / speed,
+            strouhal_heave: 2.0 * case.frequency * foil.heave / speed,
+            reduced_frequency: std::f64::consts::PI * case.frequency * chord / speed,
+            reynolds: speed * chord / props.kinematic_viscosity,
+        });
+    }
+    let area: f64 = case.foils.iter().map(|f| f.chord * f.span).sum();
+    let thrust: f64 = foils.iter().map(|f| f.thrust).sum();
+    let power: f64 = foils.iter().map(|f| f.power).sum();
+    let tc = thrust / (q * area);
+    let pc = power / (q * speed * area);
+    Summary {
+        total: TotalSummary {
+            thrust_coefficient: tc,
+            power_coefficient: pc,
+            efficiency: if tc > 0.0 && pc > 0.0 {
+                Some(tc / pc)
+            } else {
+                None
+            },
+            thrust,
+            power,
+        },
+        foils,
+        cycles_averaged,
+        first_cycle_averaged: first_cycle,
+        ramp_cycles: [0, ramp_end],
+        converged,
+        time_step: dt,
+        steps: hist.len(),
+        particles: sim.particles().0.len(),
+        particle_cap: sim.particle_cap(),
+        density: rho,
+        kinematic_viscosity: props.kinematic_viscosity,
+    }
+}
