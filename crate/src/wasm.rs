@@ -18,9 +18,14 @@
 
 use wasm_bindgen::prelude::*;
 
+use serde::Serialize;
+
 use crate::case::Case;
 use crate::error::CaseError;
+use crate::kinematics::{self, Motion};
 use crate::sim::{FoilLoads, Simulation};
+use crate::validate as limits;
+use crate::water;
 
 /// Numbers per foil in the loads buffers (the fields of [`FoilLoads`]).
 pub const LOAD_STRIDE: usize = 11;
@@ -98,7 +103,9 @@ pub fn load_stride() -> usize {
 #[wasm_bindgen(js_name = checkCase)]
 pub fn check_case(case_json: &str) -> Result<(), JsValue> {
     let case = Case::from_json(case_json).map_err(|e| case_error(&e))?;
-    Simulation::new(&case).map(|_| ()).map_err(|e| case_error(&e))
+    Simulation::new(&case)
+        .map(|_| ())
+        .map_err(|e| case_error(&e))
 }
 
 /// The case as the crate reads it, written back as case-file JSON (defaults filled in).
@@ -107,6 +114,94 @@ pub fn normalise_case(case_json: &str) -> Result<String, JsValue> {
     Case::from_json(case_json)
         .map(|c| c.to_json())
         .map_err(|e| case_error(&e))
+}
+
+/// The allowed range of every case value, from the crate's validation (see [`crate::validate`]), as
+/// `{ key: [low, high] }`. Keys are case key paths with `*` for the foil index; ranges marked
+/// `_chords` are multiples of that foil's chord.
+#[wasm_bindgen(js_name = caseLimits)]
+pub fn case_limits() -> Result<JsValue, JsValue> {
+    let pair = |r: (f64, f64)| [r.0, r.1];
+    let count = |r: (usize, usize)| [r.0 as f64, r.1 as f64];
+    let table = serde_json::json!({
+        "flow.speed": pair(limits::SPEED_RANGE),
+        "flow.temperature": pair(water::TEMPERATURE_RANGE),
+        "frequency": [0.0, limits::FREQUENCY_MAX],
+        "foils.*.chord": pair(limits::CHORD_RANGE),
+        "foils.*.thickness": pair(limits::THICKNESS_RANGE),
+        "foils.*.span": pair(limits::SPAN_RANGE),
+        "foils.*.pivot": [0.0, 1.0],
+        "foils.*.heave_chords": [0.0, limits::HEAVE_MAX_CHORDS],
+        "foils.*.pitch": [0.0, limits::PITCH_MAX],
+        "foils.*.pitch_mean": [-limits::PITCH_MEAN_MAX, limits::PITCH_MEAN_MAX],
+        "foils.*.pitch_lead": [-limits::ANGLE_TURN_MAX, limits::ANGLE_TURN_MAX],
+        "foils.*.phase": [-limits::ANGLE_TURN_MAX, limits::ANGLE_TURN_MAX],
+        "foils.*.x_chords": [-limits::POSITION_MAX_CHORDS, limits::POSITION_MAX_CHORDS],
+        "foils.*.y_chords": [-limits::POSITION_MAX_CHORDS, limits::POSITION_MAX_CHORDS],
+        "numerics.panels": count(limits::PANELS_RANGE),
+        "numerics.steps_per_cycle": count(limits::STEPS_PER_CYCLE_RANGE),
+        "numerics.cycles": count(limits::CYCLES_RANGE),
+        "numerics.core_size": pair(limits::CORE_SIZE_RANGE),
+        "numerics.max_particles": count(limits::MAX_PARTICLES_RANGE),
+        "numerics.ramp_cycles": [0.0, limits::RAMP_CYCLES_MAX],
+        "foils": [1.0, crate::case::MAX_FOILS as f64],
+    });
+    to_js(&table)
+}
+
+/// Numbers of one foil's motion known before any step, each from the crate's kinematics and water
+/// properties with the definitions of [`crate::summary::FoilSummary`].
+#[derive(Serialize)]
+struct Derived {
+    /// Strouhal number f A / U, A = peak-to-peak trailing-edge excursion.
+    strouhal: f64,
+    /// Heave-based Strouhal number 2 f h0 / U.
+    strouhal_heave: f64,
+    /// Reduced frequency pi f c / U (semichord based).
+    reduced_frequency: f64,
+    /// Reynolds number U c / nu.
+    reynolds: f64,
+    /// deg. Largest absolute effective angle of attack at the pivot over a cycle.
+    max_angle_of_attack: f64,
+    /// m. Peak-to-peak trailing-edge excursion A.
+    trailing_edge_excursion: f64,
+    /// Wake wavelength U / f in chords of this foil (`None` for frequency 0).
+    wake_wavelength_chords: Option<f64>,
+}
+
+/// The derived numbers of every foil of a case (see `Derived`), as an array of plain objects.
+/// Throws a `CaseError` if the case is bad.
+#[wasm_bindgen(js_name = derivedNumbers)]
+pub fn derived_numbers(case_json: &str) -> Result<JsValue, JsValue> {
+    let case = Case::from_json(case_json).map_err(|e| case_error(&e))?;
+    let f = case.frequency;
+    let u = case.flow.speed;
+    let nu = water::properties(case.flow.water, case.flow.temperature).kinematic_viscosity;
+    let out: Vec<Derived> = case
+        .foils
+        .iter()
+        .map(|foil| {
+            let motion = Motion::new(foil, f, 0.0);
+            let excursion = kinematics::trailing_edge_excursion(&motion, foil.chord, foil.pivot);
+            Derived {
+                strouhal: f * excursion / u,
+                strouhal_heave: 2.0 * f * foil.heave / u,
+                reduced_frequency: std::f64::consts::PI * f * foil.chord / u,
+                reynolds: u * foil.chord / nu,
+                max_angle_of_attack: kinematics::max_angle_of_attack(&motion, u).to_degrees(),
+                trailing_edge_excursion: excursion,
+                wake_wavelength_chords: (f > 0.0).then(|| u / (f * foil.chord)),
+            }
+        })
+        .collect();
+    to_js(&out)
+}
+
+/// A serialisable value as a plain JS value (`None` becomes `null`).
+fn to_js<T: Serialize + ?Sized>(value: &T) -> Result<JsValue, JsValue> {
+    value
+        .serialize(&serde_wasm_bindgen::Serializer::json_compatible())
+        .map_err(JsValue::from)
 }
 
 /// A running simulation, owned by JS; call `free()` when done with it.
@@ -228,7 +323,6 @@ impl WasmSim {
     /// Cycle statistics of the steps taken so far, as a plain object with the keys of
     /// `finwake simulate --json` (`efficiency` is `null` where it is undefined).
     pub fn summary(&self) -> Result<JsValue, JsValue> {
-        let serializer = serde_wasm_bindgen::Serializer::json_compatible();
-        serde::Serialize::serialize(&self.sim.summary(), &serializer).map_err(JsValue::from)
+        to_js(&self.sim.summary())
     }
 }

@@ -1,0 +1,53 @@
+// The animation loop: requestAnimationFrame drives everything on the page's thread. The solver
+// runs in a worker; each frame asks it for as many fixed time steps as real time times the speed
+// factor calls for (capped, so a slow machine falls behind instead of spiralling), with at most
+// one request in flight. The physics time step comes from the case, never from the frame time.
+
+export class Loop {
+  /** @param {(dtSeconds: number, nowMs: number) => void} onFrame */
+  constructor(onFrame) {
+    this.onFrame = onFrame;
+    this.last = 0;
+    this.tick = this.tick.bind(this);
+  }
+  start() { requestAnimationFrame(this.tick); }
+  tick(now) {
+    const dt = this.last ? Math.min(0.1, (now - this.last) / 1000) : 0;
+    this.last = now;
+    this.onFrame(dt, now);
+    requestAnimationFrame(this.tick);
+  }
+}
+
+/** How many solver steps to ask for this frame. */
+export class StepPacer {
+  constructor() {
+    this.accumulated = 0; // s of simulated time owed
+    this.msPerStep = 5; // running estimate from the worker's timings
+  }
+  reset() { this.accumulated = 0; }
+  /** Notes a finished batch. */
+  observe(steps, ms) {
+    if (steps > 0) this.msPerStep = 0.8 * this.msPerStep + 0.2 * (ms / steps);
+  }
+  /**
+   * @param {number} dtReal  s of real time since the last frame
+   * @param {number|"max"} speed  simulated seconds per real second, or "max"
+   * @param {number} timeStep  s, the case's time step
+   * @returns {{steps: number, budgetMs: number}}
+   */
+  next(dtReal, speed, timeStep) {
+    if (speed === "max") return { steps: 1e6, budgetMs: 30 };
+    const cap = Math.max(1, Math.floor(40 / Math.max(0.05, this.msPerStep)));
+    this.accumulated += dtReal * speed;
+    let steps = Math.floor(this.accumulated / timeStep + 1e-9);
+    if (steps <= 0) return { steps: 0, budgetMs: 0 };
+    if (steps > cap) {
+      steps = cap;
+      this.accumulated = 0; // behind real time: drop the debt rather than pile it up
+    } else {
+      this.accumulated -= steps * timeStep;
+    }
+    return { steps, budgetMs: 45 };
+  }
+}

@@ -1,0 +1,322 @@
+// Entry of the live view: builds the state, the controls, the views and the two solver workers
+// (the run on screen, and the single-foil reference run in the background), then starts the loop.
+// Every failure ends in a readable message in the page.
+import { PageState } from "./state.js";
+import { SolverClient } from "./solver-client.js";
+import { Loop, StepPacer } from "./loop.js";
+import { WakeView } from "./render/wake.js";
+import { TimePlot } from "./plot/timeseries.js";
+import { Controls } from "./ui/controls.js";
+import { Readouts } from "./ui/readouts.js";
+
+const $ = (id) => document.getElementById(id);
+const PLOT_COLOURS = ["#0f6f75", "#b3404a", "#8a7a1f", "#5b4fb0", "#3f8f3f", "#b36b1f", "#9c3f8a", "#4f7fa6"];
+const PLOT_CYCLES = 3;
+const DEFAULT_PRESET = "tandem-two-chords.json";
+
+let faulted = false;
+
+/** Shows a failure in the page (banner and over the wake view) and stops the run. */
+function fault(text) {
+  if (faulted) return;
+  faulted = true;
+  const box = $("fault");
+  box.hidden = false;
+  box.textContent = `The live view stopped. ${text}\nReload the page to try again.`;
+  const over = $("wake-message");
+  over.hidden = false;
+  over.textContent = text;
+  document.body.dataset.runState = "fault";
+  $("run-state").textContent = "stopped by an error";
+}
+
+window.addEventListener("error", (e) => fault(`A script error: ${e.message}`));
+window.addEventListener("unhandledrejection", (e) => fault(`A script error: ${e.reason?.message ?? e.reason}`));
+
+const state = new PageState();
+const controls = new Controls($("controls"), state, () => restart());
+const readouts = new Readouts($("readouts"), $("averaged"), $("relative-note"));
+const wake = new WakeView($("wake"));
+const plots = {
+  thrust: new TimePlot($("plot-thrust"), { title: "Thrust coefficient C_T", unit: "C_T" }),
+  lift: new TimePlot($("plot-lift"), { title: "Lift coefficient C_L", unit: "C_L" }),
+  power: new TimePlot($("plot-power"), { title: "Input power P (screening estimate)", unit: "P (W)" }),
+};
+// Offsets into one foil's loads record (see loadFields() in crate/src/wasm.rs).
+let field = { lift_coefficient: 3, thrust_coefficient: 4, power: 10 };
+let stride = 11;
+
+const pacer = new StepPacer();
+let presets = [];
+let token = 0; // newest start request
+let activeToken = -1; // the run the worker is stepping
+const pending = new Map(); // token -> candidate case
+let run = null; // facts of the active run
+let inFlight = false;
+let stepOnce = false;
+let refToken = 0;
+let refSummaries = [];
+let lastSummary = null;
+const perf = { steps: 0, stepMs: 0, draws: 0, frames: 0, since: performance.now() };
+
+const main = new SolverClient("solver", onSolver, fault);
+const reference = new SolverClient("single-foil reference", onReference, fault);
+
+if ("serviceWorker" in navigator) {
+  // Offline use once loaded; the page works the same without it.
+  navigator.serviceWorker.register("sw.js").catch(() => {});
+}
+
+loadPresets().catch((e) => fault(`The example cases could not be loaded: ${e.message}`));
+
+async function loadPresets() {
+  const index = await fetchJson("cases/index.json");
+  presets = await Promise.all(index.map(async (p) => ({ ...p, case: await fetchJson(`cases/${p.file}`) })));
+  const sel = $("preset");
+  sel.replaceChildren(...presets.map((p, i) => new Option(p.title, String(i))));
+  const d = Math.max(0, presets.findIndex((p) => p.file === DEFAULT_PRESET));
+  sel.value = String(d);
+  state.load(presets[d].case);
+  maybeStart();
+}
+
+async function fetchJson(url) {
+  const r = await fetch(url);
+  if (!r.ok) throw new Error(`${url}: HTTP ${r.status}`);
+  return r.json();
+}
+
+function maybeStart() {
+  if (!main.ready || !state.values || faulted) return;
+  if (activeToken < 0 && token === 0) {
+    rebuildControls();
+    restart();
+  }
+}
+
+function rebuildControls() {
+  controls.build();
+  $("foil-count").textContent = state.values.foils.length >= 2 ? "Remove the hind foil" : "Add a hind foil";
+}
+
+/** A parameter changed (or reset): start a new run of the user's case at once. */
+function restart() {
+  if (faulted || !main.ready) return;
+  token += 1;
+  const c = state.candidate();
+  pending.set(token, c);
+  main.post({ type: "start", token, caseJson: JSON.stringify(c) });
+}
+
+function onSolver(msg) {
+  switch (msg.type) {
+    case "ready":
+      controls.setLimits(msg.limits);
+      stride = msg.loadStride;
+      field = indexFields(msg.loadFields);
+      maybeStart();
+      break;
+    case "started": started(msg); break;
+    case "case-error":
+      pending.delete(msg.token);
+      controls.showCaseError(msg.error);
+      controls.showDerived(msg.derived);
+      activeToken = msg.activeToken;
+      break;
+    case "frame": frame(msg); break;
+    default: break;
+  }
+}
+
+function indexFields(names) {
+  const at = (name) => names.findIndex((n) => n === name || n.startsWith(`${name} (`));
+  return { lift_coefficient: at("lift_coefficient"), thrust_coefficient: at("thrust_coefficient"), power: at("power") };
+}
+
+function started(msg) {
+  const c = pending.get(msg.token);
+  for (const k of pending.keys()) if (k <= msg.token) pending.delete(k);
+  activeToken = msg.token;
+  state.accepted = c;
+  const n = msg.foils;
+  const f = c.frequency;
+  run = { foils: n, totalSteps: msg.totalSteps, timeStep: msg.timeStep, stepsPerCycle: msg.stepsPerCycle, cycles: f > 0 ? c.numerics.cycles : 0, finished: false, frequency: f };
+  pacer.reset();
+  lastSummary = null;
+  const windowSeconds = f > 0 ? PLOT_CYCLES / f : msg.totalSteps * msg.timeStep;
+  const capacity = Math.min(20000, f > 0 ? PLOT_CYCLES * msg.stepsPerCycle + 8 : msg.totalSteps + 8);
+  const series = Array.from({ length: n }, (_, i) => ({ label: `foil ${i}`, color: PLOT_COLOURS[i % PLOT_COLOURS.length] }));
+  for (const p of Object.values(plots)) p.setSeries(series, capacity, windowSeconds);
+  if (readouts.cells.size === 0 || readouts.foils !== n) { readouts.build(n); readouts.foils = n; } else readouts.clear();
+  readouts.showRelative(null, null, 0);
+  if (n >= 2) readouts.relativeNote.textContent = "Single-foil reference: computing in the background…";
+  wake.setCase(c);
+  wake.setScene(msg.outlines, msg.particles);
+  controls.showCaseError(null);
+  controls.showDerived(msg.derived);
+  $("case-json").value = JSON.stringify(c, null, 2);
+  refSummaries = [];
+  if (n >= 2) {
+    refToken += 1;
+    reference.post({ type: "reference", token: refToken, caseJson: JSON.stringify(PageState.singleFoilCase(c, 1)) });
+  }
+  updateClock(0, msg.time);
+  setRunState();
+  document.body.dataset.ready = "true";
+}
+
+function frame(msg) {
+  inFlight = false;
+  if (msg.stale || msg.token !== activeToken || !run) return;
+  pacer.observe(msg.steps, msg.stepMs);
+  perf.steps += msg.steps;
+  perf.stepMs += msg.stepMs;
+  const per = 1 + run.foils * stride;
+  const rec = msg.records;
+  for (let s = 0; s + per <= rec.length; s += per) {
+    const t = rec[s];
+    for (let i = 0; i < run.foils; i++) {
+      const b = s + 1 + i * stride;
+      plots.thrust.push(i, t, rec[b + field.thrust_coefficient]);
+      plots.lift.push(i, t, rec[b + field.lift_coefficient]);
+      plots.power.push(i, t, rec[b + field.power]);
+    }
+  }
+  wake.setScene(msg.outlines, msg.particles);
+  updateClock(msg.stepsTaken, msg.time, Math.floor(msg.particles.length / 3));
+  if (msg.summary) {
+    lastSummary = { summary: msg.summary, stepsTaken: msg.stepsTaken };
+    readouts.show(msg.summary, run.cycles);
+    showRelative();
+  }
+  if (msg.finished) {
+    run.finished = true;
+    setRunState();
+  }
+}
+
+function onReference(msg) {
+  if (msg.type === "reference-cycle" && msg.token === refToken) {
+    refSummaries[msg.cycles] = msg.summary;
+    if (msg.finished) refSummaries.final = msg.summary;
+    showRelative();
+  } else if (msg.type === "reference-error" && msg.token === refToken) {
+    readouts.relativeNote.textContent = `The single-foil reference could not run: ${msg.error.message}`;
+  }
+}
+
+/** The hind foil against the single foil after the same number of whole cycles. */
+function showRelative() {
+  if (!run || run.foils < 2 || !lastSummary) return;
+  const cycles = run.stepsPerCycle > 0 ? Math.floor(lastSummary.stepsTaken / run.stepsPerCycle) : 0;
+  const single = run.stepsPerCycle > 0 ? refSummaries[cycles] : run.finished ? refSummaries.final : null;
+  if (lastSummary.summary.cycles_averaged === 0 && run.stepsPerCycle > 0) return;
+  readouts.showRelative(lastSummary.summary.foils[1], single ? single.foils[0] : null, cycles);
+}
+
+function updateClock(steps, time, particles = 0) {
+  const setStat = (k, text, value) => {
+    const e = document.querySelector(`[data-stat="${k}"]`);
+    e.textContent = text;
+    if (value !== undefined) e.dataset.value = String(value);
+  };
+  setStat("time", `t = ${time.toFixed(3)} s`, time);
+  setStat("step", `step ${steps} of ${run.totalSteps}`, steps);
+  if (run.stepsPerCycle > 0) setStat("cycle", `cycle ${(steps / run.stepsPerCycle).toFixed(2)} of ${run.cycles}`, steps / run.stepsPerCycle);
+  else setStat("cycle", "start from rest", 0);
+  setStat("particles", `${particles} particles`, particles);
+}
+
+function setRunState() {
+  if (faulted) return;
+  const s = run?.finished ? "finished" : state.running ? "running" : "paused";
+  document.body.dataset.runState = s;
+  $("run-toggle").textContent = state.running ? "Pause" : "Run";
+  $("run-toggle").setAttribute("aria-pressed", state.running ? "false" : "true");
+  $("run-state").textContent = s === "finished" ? `finished: all ${run.totalSteps} steps (Reset runs it again)` : s === "running" ? "running" : "paused";
+}
+
+function request(steps, budgetMs) {
+  inFlight = true;
+  main.post({ type: "advance", token: activeToken, steps, budgetMs });
+}
+
+const loop = new Loop((dt, now) => {
+  perf.frames += 1;
+  if (!faulted && run && !run.finished && !inFlight && pending.size === 0) {
+    if (stepOnce) {
+      stepOnce = false;
+      request(1, 1000);
+    } else if (state.running) {
+      const { steps, budgetMs } = pacer.next(dt, state.speed, run.timeStep);
+      if (steps > 0) request(steps, budgetMs);
+    }
+  }
+  let drew = false;
+  if (wake.needsDraw) { wake.draw(); drew = true; }
+  for (const p of Object.values(plots)) if (p.needsDraw) { p.draw(); drew = true; }
+  if (drew) perf.draws += 1;
+  const elapsed = now - perf.since;
+  if (elapsed > 1000) {
+    const sps = perf.stepMs > 0 ? (perf.steps * 1000) / perf.stepMs : null;
+    const fps = (perf.draws * 1000) / elapsed;
+    const e1 = document.querySelector('[data-stat="steps_per_second"]');
+    const e2 = document.querySelector('[data-stat="frame_rate"]');
+    if (sps !== null) { e1.textContent = `${sps.toFixed(0)} solver steps/s`; e1.dataset.value = String(sps); }
+    e2.textContent = `${fps.toFixed(0)} frames/s`;
+    e2.dataset.value = String(fps);
+    e2.dataset.callbacks = String((perf.frames * 1000) / elapsed);
+    Object.assign(perf, { steps: 0, stepMs: 0, draws: 0, frames: 0, since: now });
+  }
+});
+loop.start();
+
+// Run controls.
+$("run-toggle").addEventListener("click", () => { state.running = !state.running; pacer.reset(); setRunState(); });
+$("run-step").addEventListener("click", () => { state.running = false; stepOnce = true; setRunState(); });
+$("run-reset").addEventListener("click", () => restart());
+$("run-speed").addEventListener("change", (e) => {
+  const v = e.target.value;
+  state.speed = v === "max" ? "max" : Number(v);
+  pacer.reset();
+});
+$("view-in").addEventListener("click", () => wake.zoomAt(1.25, wake.surface.widthCss / 2, wake.surface.heightCss / 2));
+$("view-out").addEventListener("click", () => wake.zoomAt(0.8, wake.surface.widthCss / 2, wake.surface.heightCss / 2));
+$("view-fit").addEventListener("click", () => { wake.userMoved = false; wake.fit(); });
+$("preset").addEventListener("change", (e) => {
+  const p = presets[Number(e.target.value)];
+  if (!p) return;
+  state.load(p.case);
+  wake.userMoved = false;
+  rebuildControls();
+  restart();
+});
+$("foil-count").addEventListener("click", () => {
+  if (state.values.foils.length >= 2) state.removeFoil(); else state.addFoil();
+  rebuildControls();
+  restart();
+  $("foil-count").focus();
+});
+$("case-export").addEventListener("click", () => {
+  const blob = new Blob([`${JSON.stringify(state.accepted ?? state.candidate(), null, 2)}\n`], { type: "application/json" });
+  const a = document.createElement("a");
+  a.href = URL.createObjectURL(blob);
+  a.download = "finwake-case.json";
+  a.click();
+  setTimeout(() => URL.revokeObjectURL(a.href), 1000);
+});
+$("case-import").addEventListener("change", async (e) => {
+  const file = e.target.files?.[0];
+  if (!file) return;
+  let parsed;
+  try {
+    parsed = JSON.parse(await file.text());
+    if (!parsed || !Array.isArray(parsed.foils) || !parsed.flow) throw new Error("not a case file (it needs flow and foils)");
+  } catch (err) {
+    controls.showCaseError({ path: "case", value: file.name, allowed: "a JSON case file", fix: err.message });
+    return;
+  }
+  state.load(parsed);
+  rebuildControls();
+  restart();
+});

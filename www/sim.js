@@ -1,0 +1,57 @@
+// The only module that imports the generated wasm package (./pkg, built by `cargo xtask site`).
+// It runs inside the solver worker (worker.js). Buffer layouts are documented in crate/src/wasm.rs:
+//   particles(): Float64Array [x_0..x_n-1, y_0..y_n-1, circulation_0..] (m, m, m^2/s CCW positive)
+//   outline(i):  Float64Array [x0, y0, x1, y1, ...] (m), trailing edge first, closed polygon
+//   advance(n):  Float64Array per step [time (s), foil 0 loads..., foil 1 loads...]
+//   loads():     Float64Array, loadStride() numbers per foil in the order of loadFields()
+import init, {
+  WasmSim, loadFields, loadStride, caseLimits, derivedNumbers, checkCase,
+} from "./pkg/finwake.js";
+
+let ready = null;
+
+/** Loads and instantiates the wasm module once; resolves to the module's static facts. */
+export function loadSolver() {
+  if (!ready) {
+    ready = init().then(() => ({
+      loadFields: loadFields(),
+      loadStride: loadStride(),
+      limits: caseLimits(),
+    }));
+  }
+  return ready;
+}
+
+/** Derived numbers of a case (array per foil); throws the crate's CaseError for a bad case. */
+export function derived(caseJson) {
+  return derivedNumbers(caseJson);
+}
+
+/** Validates a case (including the geometry checks); throws the crate's CaseError. */
+export function check(caseJson) {
+  checkCase(caseJson);
+}
+
+/** One simulation run; call free() when done. */
+export class SolverRun {
+  constructor(caseJson) {
+    this.sim = new WasmSim(caseJson);
+    this.foils = this.sim.foilCount();
+    this.stride = loadStride();
+    this.timeStep = this.sim.timeStep();
+    this.totalSteps = this.sim.totalSteps();
+  }
+  /** Takes up to n steps; returns the per-step records (see the header). */
+  advance(n) { return this.sim.advance(n); }
+  get stepsTaken() { return this.sim.stepsTaken(); }
+  get finished() { return this.sim.isFinished(); }
+  get time() { return this.sim.time(); }
+  particles() { return this.sim.particles(); }
+  outlines() {
+    const out = [];
+    for (let i = 0; i < this.foils; i++) out.push(this.sim.outline(i));
+    return out;
+  }
+  summary() { return this.sim.summary(); }
+  free() { this.sim.free(); this.sim = null; }
+}
