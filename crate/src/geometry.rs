@@ -13,7 +13,7 @@ use std::f64::consts::PI;
 /// -0.1036 in common use): `5 t (0.2969 sqrt x - 0.1260 x - 0.3516 x^2 + 0.2843 x^3 - 0.1036 x^4)`.
 pub fn symmetric_section(thickness: f64, panels: usize) -> Vec<[f64; 2]> {
     assert!(
-        panels >= 4 && panels % 2 == 0,
+        panels >= 4 && panels.is_multiple_of(2),
         "panels must be even and at least 4"
     );
     let half = panels / 2;

@@ -27,14 +27,14 @@ pub mod case;
 pub mod conventions;
 pub mod error;
 pub mod geometry;
-pub mod kinematics;
 pub mod kernels;
+pub mod kinematics;
 pub mod sim;
 pub mod summary;
 pub mod validate;
-pub mod water;
 #[cfg(feature = "wasm")]
 pub mod wasm;
+pub mod water;
 
 pub use case::{Case, Flow, Foil, Numerics};
 pub use error::CaseError;

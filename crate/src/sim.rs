@@ -416,6 +416,11 @@ impl Simulation {
         &self.impulse
     }
 
+    /// m/s. Flow velocity at `p` (m): free stream, foils and wake, as used to convect the wake.
+    pub fn velocity(&self, p: [f64; 2]) -> [f64; 2] {
+        self.velocity_at(p)
+    }
+
     /// Sum of all circulation: bound plus free (m^2/s); zero by Kelvin's theorem.
     pub fn total_circulation(&self) -> f64 {
         self.bodies.iter().map(|b| b.circulation).sum::<f64>() + self.wake.gamma.iter().sum::<f64>()
@@ -778,7 +783,12 @@ impl Simulation {
             let n = b.panels();
             for k in 1..n {
                 let g = b.mu[k - 1] - b.mu[k];
-                let v = kernels::blob_velocity(b.nodes[k], g, self.delta_sq, p);
+                // The doublet panels are exactly point vortices at the nodes; each is smoothed
+                // over the longer adjacent panel (at most the wake core), the scale on which the
+                // discrete sheet stands for the continuous one.
+                let core = b.lengths[k - 1].max(b.lengths[k]);
+                let d2 = (core * core).min(self.delta_sq);
+                let v = kernels::blob_velocity(b.nodes[k], g, d2, p);
                 u[0] += v[0];
                 u[1] += v[1];
             }
@@ -921,7 +931,8 @@ fn check_clearance(case: &Case, bodies: &[Body]) -> Result<(), CaseError> {
                             "foils {i} and {j} {} at t = {t:.4} s; move foil {j} further away (foils.{j}.x or foils.{j}.y) or reduce the heave and pitch amplitudes",
                             if d == 0.0 { "overlap" } else { "touch" }
                         ),
-                    ));
+                    )
+                    .with_kind(crate::error::ErrorKind::Overlap));
                 }
             }
         }

@@ -833,6 +833,21 @@ fn validate_numerics(case: &Case) -> Result<(), CaseError> {
     // s. Time for the stream to move one chord of foil 0.
     let chord_time = STEP_TRAVEL_MAX_CHORDS * c0 / speed;
 
+    if case.frequency == 0.0 {
+        // A start from rest holds every foil at its mean pose; amplitudes would be ignored.
+        for (i, foil) in case.foils.iter().enumerate() {
+            for (name, value) in [("heave", foil.heave), ("pitch", foil.pitch)] {
+                if value != 0.0 {
+                    return Err(range_error(
+                        &format!("foils.{i}.{name}"),
+                        value,
+                        "0 when frequency is 0 (a start from rest holds the foil at its mean pose)",
+                        &format!("set foils.{i}.{name} to 0, or give a flapping frequency above 0"),
+                    ));
+                }
+            }
+        }
+    }
     if case.frequency > 0.0 {
         for (name, v) in [("time_step", num.time_step), ("duration", num.duration)] {
             if let Some(v) = v {
