@@ -93,6 +93,8 @@ struct Body {
     phi_prev: Vec<f64>,
     phi_prev2: Vec<f64>,
     shed_point: [f64; 2],
+    /// Pressure coefficient at each collocation point at the latest solved instant (rig checks).
+    cp: Vec<f64>,
 }
 
 impl Body {
@@ -175,6 +177,7 @@ fn new_body_from_section(
         phi_prev: vec![0.0; n],
         phi_prev2: vec![0.0; n],
         shed_point: [0.0; 2],
+        cp: vec![0.0; n],
     };
     body.set_pose(motion.pose(0.0));
     let mut s = 0.0;
@@ -447,6 +450,41 @@ impl Simulation {
         self.cap
     }
 
+    /// Pressure coefficients `(p - p_inf) / (rho U^2 / 2)` of foil `i` at the latest solved
+    /// instant, one per panel in outline order (see [`Simulation::foil_outline`]), from the same
+    /// unsteady Bernoulli equation as the loads; zeros before the first step.
+    pub fn pressure_coefficients(&self, i: usize) -> &[f64] {
+        &self.bodies[i].cp
+    }
+
+    /// m/s. Velocity at `p` (m) induced by the free stream, the free wake and every foil except
+    /// foil `i` (the onset flow foil `i`'s own panels answer), with the wake as in
+    /// [`Simulation::particles`]. Thin-aerofoil quantities such as the leading-edge suction
+    /// parameter integrate it along the chord. The foil terms are those of `velocity_at`.
+    pub fn velocity_without_foil(&self, i: usize, p: [f64; 2]) -> [f64; 2] {
+        let mut u = self.wake.velocity(p, self.delta_sq);
+        u[0] += self.speed;
+        for (bi, b) in self.bodies.iter().enumerate() {
+            if bi == i {
+                continue;
+            }
+            let n = b.panels();
+            for k in 1..n {
+                let core = b.lengths[k - 1].max(b.lengths[k]);
+                let d2 = (core * core).min(self.delta_sq);
+                let v = kernels::blob_velocity(b.nodes[k], b.mu[k - 1] - b.mu[k], d2, p);
+                u[0] += v[0];
+                u[1] += v[1];
+            }
+            for k in 0..n {
+                let v = kernels::source_velocity(b.nodes[k], b.nodes[k + 1], p);
+                u[0] += v[0] * b.sigma[k];
+                u[1] += v[1] * b.sigma[k];
+            }
+        }
+        u
+    }
+
     /// Advances one time step (solve, loads, wake convection). Does nothing once finished.
     pub fn step(&mut self) {
         if self.is_finished() {
@@ -588,6 +626,7 @@ impl Simulation {
                 let qt = (u_inf[0] - v[0]) * tt[0] + (u_inf[1] - v[1]) * tt[1] + dphi[j];
                 let vref2 = (u_inf[0] - v[0]).powi(2) + (u_inf[1] - v[1]).powi(2);
                 let cp = (vref2 - qt * qt - 2.0 * dphidt) / u2;
+                b.cp[j] = cp;
                 let nn = b.normals[j];
                 let l = b.lengths[j];
                 let f = [-cp * nn[0] * l, -cp * nn[1] * l];
