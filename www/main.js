@@ -38,9 +38,9 @@ const controls = new Controls($("controls"), state, () => restart());
 const readouts = new Readouts($("readouts"), $("averaged"), $("relative-note"));
 const wake = new WakeView($("wake"));
 const plots = {
-  thrust: new TimePlot($("plot-thrust"), { title: "Thrust coefficient C_T", unit: "C_T" }),
-  lift: new TimePlot($("plot-lift"), { title: "Lift coefficient C_L", unit: "C_L" }),
-  power: new TimePlot($("plot-power"), { title: "Input power P (screening estimate)", unit: "P (W)" }),
+  thrust: new TimePlot($("plot-thrust"), { title: "Thrust coefficient", unit: "C_T" }),
+  lift: new TimePlot($("plot-lift"), { title: "Lift coefficient", unit: "C_L" }),
+  power: new TimePlot($("plot-power"), { title: "Input power", unit: "P (W)" }),
 };
 // Offsets into one foil's loads record (see loadFields() in crate/src/wasm.rs).
 let field = { lift_coefficient: 3, thrust_coefficient: 4, power: 10 };

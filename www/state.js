@@ -71,25 +71,35 @@ export class PageState {
     this.speed = 1;
   }
 
-  /** Loads a complete case (a preset or an imported file). */
+  /** Loads a complete case (a preset or an imported file). Foil positions stay exactly as
+   * written until the user moves a foil or changes what its gap is measured from. */
   load(caseObj) {
     const c = structuredClone(caseObj);
     c.numerics = { ...NUMERICS_DEFAULT, ...(c.numerics || {}) };
     this.values = c;
     this.gaps = [];
     this.offsets = [];
-    for (let i = 1; i < c.foils.length; i++) {
-      const fore = c.foils[i - 1];
-      this.gaps[i] = round((c.foils[i].x - trailingEdgeX(fore)) / fore.chord);
-      this.offsets[i] = round((c.foils[i].y - fore.y) / fore.chord);
-    }
     this.dirty.controls = true;
+  }
+
+  /** Gap of foil i in chords of foil i-1: the user's value, or the one its x gives. */
+  gap(i) {
+    if (this.gaps[i] !== undefined) return this.gaps[i];
+    const fore = this.values.foils[i - 1];
+    return round((this.values.foils[i].x - trailingEdgeX(fore)) / fore.chord);
+  }
+
+  /** Vertical offset of foil i in chords of foil i-1: the user's value, or the one its y gives. */
+  offset(i) {
+    if (this.offsets[i] !== undefined) return this.offsets[i];
+    const fore = this.values.foils[i - 1];
+    return round((this.values.foils[i].y - fore.y) / fore.chord);
   }
 
   /** The user's value of a control, in the control's unit. */
   get(key) {
     const m = /^foils\.(\d+)\.(x|y)$/.exec(key);
-    if (m && Number(m[1]) >= 1) return m[2] === "x" ? this.gaps[Number(m[1])] : this.offsets[Number(m[1])];
+    if (m && Number(m[1]) >= 1) return m[2] === "x" ? this.gap(Number(m[1])) : this.offset(Number(m[1]));
     return getPath(this.values, key);
   }
 
@@ -98,18 +108,28 @@ export class PageState {
     const m = /^foils\.(\d+)\.(x|y)$/.exec(key);
     if (m && Number(m[1]) >= 1) {
       (m[2] === "x" ? this.gaps : this.offsets)[Number(m[1])] = value;
-    } else {
-      setPath(this.values, key, value);
+      return;
     }
+    // The gap and offset of the next foil are measured from this one: keep them as they are.
+    const f = /^foils\.(\d+)\.(chord|pitch_mean)$/.exec(key);
+    const next = f ? Number(f[1]) + 1 : -1;
+    if (next >= 1 && next < this.values.foils.length) {
+      this.gaps[next] = this.gap(next);
+      this.offsets[next] = this.offset(next);
+    }
+    setPath(this.values, key, value);
   }
 
-  /** The case to run: the user's values with foil positions from the gaps and offsets. */
+  /** The case to run: the user's values, with the foils the user moved placed by their gap and
+   * offset (in order, so a moved foil carries the ones behind it). */
   candidate() {
     const c = structuredClone(this.values);
+    let moved = false;
     for (let i = 1; i < c.foils.length; i++) {
       const fore = c.foils[i - 1];
-      c.foils[i].x = trailingEdgeX(fore) + this.gaps[i] * fore.chord;
-      c.foils[i].y = fore.y + this.offsets[i] * fore.chord;
+      if (moved || this.gaps[i] !== undefined) c.foils[i].x = trailingEdgeX(fore) + this.gap(i) * fore.chord;
+      if (moved || this.offsets[i] !== undefined) c.foils[i].y = fore.y + this.offset(i) * fore.chord;
+      moved = moved || this.gaps[i] !== undefined || this.offsets[i] !== undefined;
     }
     return c;
   }

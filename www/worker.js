@@ -139,12 +139,12 @@ function reference(msg) {
 self.onmessage = async (ev) => {
   const msg = ev.data;
   try {
+    // Every request waits for the module (loaded once); requests keep their order.
+    const facts = await loadSolver();
     switch (msg.type) {
-      case "init": {
-        const facts = await loadSolver();
+      case "init":
         post({ type: "ready", ...facts });
         break;
-      }
       case "start": start(msg); break;
       case "advance": advance(msg); break;
       case "reference": reference(msg); break;

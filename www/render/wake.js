@@ -221,6 +221,6 @@ function fitBox(caseObj) {
     y1 = Math.max(y1, f.y + f.heave + 0.8 * f.chord);
   }
   const last = caseObj.foils[caseObj.foils.length - 1];
-  x1 = Math.max(x1, last.x + 7 * last.chord);
+  x1 = Math.max(x1, last.x + 9 * last.chord);
   return { x0, x1, y0, y1 };
 }

@@ -81,8 +81,7 @@ export class Controls {
     }
     sel.value = this.state.get(spec.key);
     sel.addEventListener("change", () => { this.state.set(spec.key, sel.value); this.onChange(spec.key); });
-    const spacer = document.createElement("span");
-    row.append(label, sel, spacer, document.createElement("span"));
+    row.append(label, sel);
     this.fields.set(spec.key, { input: sel, spec });
     return row;
   }
@@ -229,6 +228,10 @@ export class Controls {
   }
 
   describeAllowed(field) {
+    if (field.spec.kind === "gap" || field.spec.kind === "offset") {
+      field.allowed.textContent = "allowed: any position where the foils never touch during the motion (the solver checks)";
+      return;
+    }
     const [lo, hi] = this.allowedRange(field.spec);
     field.allowed.textContent = `allowed ${fmtRange(lo, hi, field.spec.unit)}`;
   }

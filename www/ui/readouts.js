@@ -14,7 +14,8 @@ const ROWS = [
 export function sig3(v) {
   if (v === null || v === undefined) return "—";
   if (!Number.isFinite(v)) return String(v);
-  return String(Number(v.toPrecision(3)));
+  // toPrecision keeps trailing zeros (0.730); from 1000 up it would switch to exponent form.
+  return Math.abs(v) >= 1000 ? String(Number(v.toPrecision(3))) : v.toPrecision(3);
 }
 
 export class Readouts {

@@ -113,12 +113,24 @@ fn test_all() -> Result<()> {
             "warnings",
         ])
     })?;
+    // Unit tests, the command line's own tests and the light integration tests in a debug build
+    // (debug assertions on); the heavy validation tests in the release profile they ask for.
+    let (light, heavy) = tools::test_targets(&root)?;
     stage.run("native tests (debug)", || {
-        tools::cargo(&["test", "--workspace"])
+        let mut args = vec!["test", "--workspace", "--lib", "--bins"];
+        for name in &light {
+            args.extend(["--test", name.as_str()]);
+        }
+        tools::cargo(&args)?;
+        tools::cargo(&["test", "--workspace", "--doc"])
     })?;
-    for profile in tools::heavy_test_profiles(&root)? {
-        stage.run(&format!("native tests (profile {profile})"), || {
-            tools::cargo(&["test", "-p", "finwake", "--profile", &profile])
+    if !heavy.is_empty() {
+        stage.run(&format!("native tests (release: {})", heavy.join(", ")), || {
+            let mut args = vec!["test", "--release", "-p", "finwake"];
+            for name in &heavy {
+                args.extend(["--test", name.as_str()]);
+            }
+            tools::cargo(&args)
         })?;
     }
 

@@ -63,16 +63,33 @@ pub fn cargo(args: &[&str]) -> Result<()> {
     run(command(cargo).args(args))
 }
 
-/// Profiles, beside the debug one, that the crate's tests are also run in: the release-like
-/// profile the heavy validation tests are written for (`fast-test` in the root Cargo.toml).
-pub fn heavy_test_profiles(root: &Path) -> Result<Vec<String>> {
-    let manifest = std::fs::read_to_string(root.join("Cargo.toml"))
-        .map_err(|e| format!("cannot read the root Cargo.toml: {e}"))?;
-    Ok(["fast-test"]
-        .iter()
-        .filter(|p| manifest.contains(&format!("[profile.{p}]")))
-        .map(|p| (*p).to_string())
-        .collect())
+/// The crate's integration-test targets (`[[test]]` in crate/Cargo.toml), split into those that
+/// run in a debug build and the heavy ones whose source asks for the release profile (their
+/// opening docs say `--release`).
+pub fn test_targets(root: &Path) -> Result<(Vec<String>, Vec<String>)> {
+    let manifest_path = root.join("crate").join("Cargo.toml");
+    let manifest = std::fs::read_to_string(&manifest_path)
+        .map_err(|e| format!("cannot read {}: {e}", manifest_path.display()))?;
+    let (mut light, mut heavy) = (Vec::new(), Vec::new());
+    for block in manifest.split("[[test]]").skip(1) {
+        let block = block.split("\n[").next().unwrap_or("");
+        let value = |key: &str| {
+            block.lines().find_map(|l| {
+                let (k, v) = l.split_once('=')?;
+                (k.trim() == key).then(|| v.trim().trim_matches('"').to_string())
+            })
+        };
+        let Some(name) = value("name") else { continue };
+        let path = value("path").unwrap_or_else(|| format!("tests/{name}.rs"));
+        let source = std::fs::read_to_string(root.join("crate").join(&path)).unwrap_or_default();
+        let opening: String = source.lines().take_while(|l| l.starts_with("//")).collect::<Vec<_>>().join("\n");
+        if opening.contains("--release") {
+            heavy.push(name);
+        } else {
+            light.push(name);
+        }
+    }
+    Ok((light, heavy))
 }
 
 /// Adds the wasm32 standard library with rustup unless it is there already.
