@@ -26,6 +26,7 @@
 pub mod case;
 pub mod conventions;
 pub mod error;
+pub mod fast;
 pub mod geometry;
 pub mod kernels;
 pub mod kinematics;

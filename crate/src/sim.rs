@@ -10,10 +10,12 @@
 //! second-order Adams-Bashforth scheme. Pressures come from the unsteady Bernoulli equation with
 //! the surface potential differentiated in time by second-order backward differences.
 
-use nalgebra::{DMatrix, DVector};
+use nalgebra::{Complex, DMatrix, DVector};
+use std::f64::consts::PI;
 
 use crate::case::Case;
 use crate::error::CaseError;
+use crate::fast;
 use crate::geometry;
 use crate::kernels;
 use crate::kinematics::{Motion, Pose};
@@ -29,6 +31,20 @@ pub const SHED_FRACTION: f64 = 0.3;
 /// Chords behind its trailing edge over which a foil's newest shed vortices are treated as a
 /// chain of doublet panels in the solve (the near wake); beyond, they act through their flux.
 pub const NEAR_WAKE_CHORDS: f64 = 0.3;
+
+/// Opening ratio of the fast summation (cell radius over distance).
+pub const TREE_THETA: f64 = 0.5;
+/// Relative tolerance of the fast summation's far-field expansions.
+pub const TREE_TOLERANCE: f64 = 1e-7;
+
+/// Far-field multipole expansion of one foil's singularities.
+#[derive(Debug, Clone)]
+struct BodyExpansion {
+    centre: [f64; 2],
+    radius: f64,
+    core: f64,
+    moments: Vec<Complex<f64>>,
+}
 
 /// Loads and pose of one foil at one instant.
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
@@ -225,15 +241,27 @@ impl Wake {
         self.owner.push(owner);
     }
 
-    /// m/s. Velocity induced at `p` by all particles (direct Biot-Savart sum of blobs).
+    /// m/s. Velocity induced at `p` by all particles (direct Biot-Savart sum of Gaussian
+    /// blobs; the reference the fast summation is checked against).
     fn velocity(&self, p: [f64; 2], delta_sq: f64) -> [f64; 2] {
         let mut u = [0.0; 2];
         for i in 0..self.x.len() {
-            let v = kernels::blob_velocity([self.x[i], self.y[i]], self.gamma[i], delta_sq, p);
+            let v = fast::gaussian_velocity([self.x[i], self.y[i]], self.gamma[i], delta_sq, p);
             u[0] += v[0];
             u[1] += v[1];
         }
         u
+    }
+
+    /// The particles as elements for the fast summation.
+    fn elements(&self, delta_sq: f64) -> fast::Elements {
+        fast::Elements {
+            x: self.x.clone(),
+            y: self.y.clone(),
+            gamma: self.gamma.clone(),
+            source: vec![0.0; self.x.len()],
+            delta_sq: vec![delta_sq; self.x.len()],
+        }
     }
 
     /// Merges the oldest same-sign neighbours of the same foil, pairwise, until at most
@@ -472,7 +500,7 @@ impl Simulation {
             for k in 1..n {
                 let core = b.lengths[k - 1].max(b.lengths[k]);
                 let d2 = (core * core).min(self.delta_sq);
-                let v = kernels::blob_velocity(b.nodes[k], b.mu[k - 1] - b.mu[k], d2, p);
+                let v = fast::gaussian_velocity(b.nodes[k], b.mu[k - 1] - b.mu[k], d2, p);
                 u[0] += v[0];
                 u[1] += v[1];
             }
@@ -497,10 +525,13 @@ impl Simulation {
             let pose = b.motion.pose(t);
             b.set_pose(pose);
         }
+        // One fast-summation tree over the wake at this instant serves the shed points, the onset
+        // flow on the foils and the convection.
+        let tree = fast::Tree::new(&self.wake.elements(self.delta_sq), TREE_THETA, TREE_TOLERANCE);
         // Newest shed point behind each trailing edge.
         for b in &mut self.bodies {
             let te = b.trailing_edge();
-            let uw = self.wake.velocity(te, self.delta_sq);
+            let uw = tree.velocity(te);
             let vte = b.pose.velocity_at(te);
             let rel = [u_inf[0] + uw[0] - vte[0], u_inf[1] + uw[1] - vte[1]];
             b.shed_point = [
@@ -530,48 +561,40 @@ impl Simulation {
             // The closing vortex carries the rest of the older wake's circulation.
             closures.push((start, -m));
         }
-        let free: Vec<usize> = (0..self.wake.len()).filter(|&i| !in_chain[i]).collect();
-        let free_velocity = |p: [f64; 2], wake: &Wake, delta_sq: f64| {
-            let mut u = [0.0; 2];
-            for &i in &free {
-                let v = kernels::blob_velocity([wake.x[i], wake.y[i]], wake.gamma[i], delta_sq, p);
-                u[0] += v[0];
-                u[1] += v[1];
+        let chained: Vec<usize> = (0..self.wake.len()).filter(|&i| in_chain[i]).collect();
+        // Velocity and stream function of the free (not chained) particles at `p`: the tree's
+        // sum over all particles less the chained ones.
+        let free_flow = |p: [f64; 2], wake: &Wake, delta_sq: f64| {
+            let (mut u, mut psi) = tree.eval(p);
+            for &i in &chained {
+                let c = [wake.x[i], wake.y[i]];
+                let v = fast::gaussian_velocity(c, wake.gamma[i], delta_sq, p);
+                u[0] -= v[0];
+                u[1] -= v[1];
+                psi -= fast::gaussian_stream_function(c, wake.gamma[i], delta_sq, p);
             }
-            u
+            (u, psi)
         };
         let mut onset_phi: Vec<Vec<f64>> = Vec::with_capacity(self.bodies.len());
         for b in &mut self.bodies {
             let npan = b.panels();
+            let at_nodes: Vec<([f64; 2], f64)> =
+                b.nodes.iter().map(|&p| free_flow(p, &self.wake, self.delta_sq)).collect();
             let psi: Vec<f64> = b
                 .nodes
                 .iter()
-                .map(|&p| {
-                    let mut s = 0.0;
-                    for &i in &free {
-                        s += kernels::blob_stream_function(
-                            [self.wake.x[i], self.wake.y[i]],
-                            self.wake.gamma[i],
-                            self.delta_sq,
-                            p,
-                        );
-                    }
+                .zip(&at_nodes)
+                .map(|(&p, f)| {
+                    let mut s = f.1;
                     for &(c, g) in &closures {
-                        s += kernels::blob_stream_function(c, g, 0.0, p);
+                        s += fast::gaussian_stream_function(c, g, 0.0, p);
                     }
                     s
                 })
                 .collect();
-            let un: Vec<[f64; 2]> = b
-                .nodes
-                .iter()
-                .map(|&p| free_velocity(p, &self.wake, self.delta_sq))
-                .collect();
-            let um: Vec<[f64; 2]> = b
-                .mids
-                .iter()
-                .map(|&p| free_velocity(p, &self.wake, self.delta_sq))
-                .collect();
+            let un: Vec<[f64; 2]> = at_nodes.iter().map(|f| f.0).collect();
+            let um: Vec<[f64; 2]> =
+                b.mids.iter().map(|&p| free_flow(p, &self.wake, self.delta_sq).0).collect(); // psi unused at mids
             let mut phi = vec![0.0; npan];
             let mut acc = 0.0;
             for j in 0..npan {
@@ -669,7 +692,7 @@ impl Simulation {
             self.wake.push(b.shed_point, prev - b.circulation, bi);
         }
         self.impulse.push(self.vortex_impulse());
-        self.convect(t);
+        self.convect(t, &tree);
         self.wake.coarsen(self.cap, self.bodies.len());
         self.steps += 1;
     }
@@ -751,10 +774,13 @@ impl Simulation {
                 }
             }
         }
-        let x = a
-            .lu()
-            .solve(&rhs)
-            .expect("the panel system is non-singular for separated foils");
+        let x = match self.solve_blocks(&a, &rhs) {
+            Some(x) => x,
+            None => a
+                .lu()
+                .solve(&rhs)
+                .expect("the panel system is non-singular for separated foils"),
+        };
         for b in &mut self.bodies {
             let n = b.panels();
             for j in 0..n {
@@ -762,6 +788,69 @@ impl Simulation {
             }
             b.circulation = b.mu[0] - b.mu[n - 1];
         }
+    }
+
+    /// Block Gauss-Seidel on the assembled system, each foil's diagonal block solved with its
+    /// kept LU factors plus the trailing-edge panel by Sherman-Morrison, starting from the
+    /// previous step's solution. Returns `None` unless it converges to round-off (relative change
+    /// below 1e-14) within 200 sweeps; the caller then factors the whole matrix.
+    fn solve_blocks(&mut self, a: &DMatrix<f64>, rhs: &DVector<f64>) -> Option<DVector<f64>> {
+        let m = rhs.len();
+        let mut x = DVector::<f64>::zeros(m);
+        let mut lus = Vec::with_capacity(self.bodies.len());
+        for b in &mut self.bodies {
+            if b.lu.is_none() {
+                b.lu = Some(b.self_doublet.clone().lu());
+            }
+            for j in 0..b.panels() {
+                x[b.offset + j] = b.mu[j];
+            }
+        }
+        for b in &self.bodies {
+            let n = b.panels();
+            let lu = b.lu.as_ref().expect("factored above");
+            // This foil's own trailing-edge panel column (its rank-one part of the block).
+            let mut w = DVector::<f64>::zeros(n);
+            for j in 0..n {
+                w[j] = a[(b.offset + j, b.offset + n - 1)] - b.self_doublet[(j, n - 1)];
+            }
+            let z = lu.solve(&w)?;
+            lus.push((lu, z));
+        }
+        for _sweep in 0..200 {
+            let mut change: f64 = 0.0;
+            let mut size: f64 = 0.0;
+            for (bi, b) in self.bodies.iter().enumerate() {
+                let n = b.panels();
+                let mut r = DVector::<f64>::zeros(n);
+                for j in 0..n {
+                    let row = b.offset + j;
+                    let mut acc = rhs[row];
+                    for (ci, c) in self.bodies.iter().enumerate() {
+                        if ci != bi {
+                            for k in 0..c.panels() {
+                                acc -= a[(row, c.offset + k)] * x[c.offset + k];
+                            }
+                        }
+                    }
+                    r[j] = acc;
+                }
+                let (lu, z) = &lus[bi];
+                let y = lu.solve(&r)?;
+                let vz = z[n - 1] - z[0];
+                let vy = y[n - 1] - y[0];
+                let xi = y - z * (vy / (1.0 + vz));
+                for j in 0..n {
+                    change = change.max((xi[j] - x[b.offset + j]).abs());
+                    size = size.max(xi[j].abs());
+                    x[b.offset + j] = xi[j];
+                }
+            }
+            if change <= 1e-14 * size {
+                return Some(x);
+            }
+        }
+        None
     }
 
     /// One foil: the doublet matrix is constant in the body frame, so its LU factors are kept and
@@ -813,49 +902,126 @@ impl Simulation {
         imp
     }
 
-    /// m/s. Velocity at `p` from the free stream, the foils (nodal vortices of the doublet
-    /// panels and the source panels) and the wake.
+    /// m/s. Velocity at `p` from the free stream, the foils and the wake, by direct sums.
     fn velocity_at(&self, p: [f64; 2]) -> [f64; 2] {
         let mut u = self.wake.velocity(p, self.delta_sq);
         u[0] += self.speed;
         for b in &self.bodies {
-            let n = b.panels();
-            for k in 1..n {
-                let g = b.mu[k - 1] - b.mu[k];
-                // The doublet panels are exactly point vortices at the nodes; each is smoothed
-                // over the longer adjacent panel (at most the wake core), the scale on which the
-                // discrete sheet stands for the continuous one.
-                let core = b.lengths[k - 1].max(b.lengths[k]);
-                let d2 = (core * core).min(self.delta_sq);
-                let v = kernels::blob_velocity(b.nodes[k], g, d2, p);
-                u[0] += v[0];
-                u[1] += v[1];
-            }
-            for k in 0..n {
-                let m = b.mids[k];
-                let l = b.lengths[k];
-                let d2 = (p[0] - m[0]).powi(2) + (p[1] - m[1]).powi(2);
-                // Far from a panel its source acts as a point source; the neglected quadrupole
-                // term is below (l / r)^2 / 12 = 0.1 % of the panel's contribution at r > 8 l.
-                let v = if d2 > 64.0 * l * l {
-                    kernels::point_source_velocity(m, b.sigma[k] * l, 0.0, p)
-                } else {
-                    let v = kernels::source_velocity(b.nodes[k], b.nodes[k + 1], p);
-                    [v[0] * b.sigma[k], v[1] * b.sigma[k]]
-                };
-                u[0] += v[0];
-                u[1] += v[1];
-            }
+            let v = self.body_velocity_direct(b, p);
+            u[0] += v[0];
+            u[1] += v[1];
         }
         u
     }
 
+    /// m/s. Velocity at `p` induced by foil `b`'s singularities: its doublet panels (exactly
+    /// point vortices at the nodes, each smoothed over the longer adjacent panel, at most the
+    /// wake core: the scale on which the discrete sheet stands for the continuous one) and its
+    /// source panels (exact panel formula).
+    fn body_velocity_direct(&self, b: &Body, p: [f64; 2]) -> [f64; 2] {
+        let n = b.panels();
+        let mut u = [0.0; 2];
+        for k in 1..n {
+            let g = b.mu[k - 1] - b.mu[k];
+            let core = b.lengths[k - 1].max(b.lengths[k]);
+            let d2 = (core * core).min(self.delta_sq);
+            let v = fast::gaussian_velocity(b.nodes[k], g, d2, p);
+            u[0] += v[0];
+            u[1] += v[1];
+        }
+        for k in 0..n {
+            let v = kernels::source_velocity(b.nodes[k], b.nodes[k + 1], p);
+            u[0] += v[0] * b.sigma[k];
+            u[1] += v[1] * b.sigma[k];
+        }
+        u
+    }
+
+    /// Multipole expansion of foil `b`'s singularities about its centre, with the exact moments
+    /// of each source panel (`integral of (z - c)^n ds`).
+    fn body_expansion(&self, b: &Body) -> BodyExpansion {
+        let n = b.panels();
+        let order = ((TREE_TOLERANCE.ln() / TREE_THETA.ln()).ceil() as usize).max(1);
+        let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+        for p in &b.nodes {
+            lo = [lo[0].min(p[0]), lo[1].min(p[1])];
+            hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+        }
+        let c = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
+        let radius = b
+            .nodes
+            .iter()
+            .map(|p| ((p[0] - c[0]).powi(2) + (p[1] - c[1]).powi(2)).sqrt())
+            .fold(0.0, f64::max);
+        let cc = Complex::new(c[0], c[1]);
+        let mut m = vec![Complex::new(0.0, 0.0); order + 1];
+        let mut core: f64 = 0.0;
+        for k in 1..n {
+            let s = Complex::new(0.0, -(b.mu[k - 1] - b.mu[k]) / (2.0 * PI));
+            let xi = Complex::new(b.nodes[k][0], b.nodes[k][1]) - cc;
+            let mut pw = s;
+            for mm in m.iter_mut() {
+                *mm += pw;
+                pw *= xi;
+            }
+            core = core.max(b.lengths[k - 1].max(b.lengths[k]));
+        }
+        for k in 0..n {
+            let za = Complex::new(b.nodes[k][0], b.nodes[k][1]) - cc;
+            let zb = Complex::new(b.nodes[k + 1][0], b.nodes[k + 1][1]) - cc;
+            let e = Complex::new(b.tangents[k][0], b.tangents[k][1]);
+            let s = b.sigma[k] / (2.0 * PI);
+            let (mut pa, mut pb) = (za, zb);
+            for (i, mm) in m.iter_mut().enumerate() {
+                *mm += (pb - pa) / (e * (i as f64 + 1.0)) * s;
+                pa *= za;
+                pb *= zb;
+            }
+        }
+        BodyExpansion { centre: c, radius, core: core.min(self.delta_sq.sqrt()), moments: m }
+    }
+
+    /// m/s. Velocity of foil `b` at `p`: its expansion far away, direct sums near it.
+    fn body_velocity(&self, b: &Body, e: &BodyExpansion, p: [f64; 2]) -> [f64; 2] {
+        let dz = Complex::new(p[0] - e.centre[0], p[1] - e.centre[1]);
+        let d = dz.norm();
+        if e.radius < TREE_THETA * d && d - e.radius > 6.0 * e.core {
+            let t = Complex::new(1.0, 0.0) / dz;
+            let mut acc = Complex::new(0.0, 0.0);
+            for mm in e.moments.iter().rev() {
+                acc = acc * t + mm;
+            }
+            let w = acc * t;
+            [w.re, -w.im]
+        } else {
+            self.body_velocity_direct(b, p)
+        }
+    }
+
     /// Moves the wake to the next instant (Adams-Bashforth 2; Euler for a new particle) and puts
     /// back outside any particle that ended inside a foil or within a quarter core of its surface.
-    fn convect(&mut self, t: f64) {
+    fn convect(&mut self, t: f64, tree: &fast::Tree) {
         let np = self.wake.len();
+        let new_from = np - self.bodies.len();
+        let expansions: Vec<BodyExpansion> = self.bodies.iter().map(|b| self.body_expansion(b)).collect();
         let vel: Vec<[f64; 2]> = (0..np)
-            .map(|i| self.velocity_at([self.wake.x[i], self.wake.y[i]]))
+            .map(|i| {
+                let p = [self.wake.x[i], self.wake.y[i]];
+                // The tree holds the particles of the start of the step; add this step's new ones.
+                let mut u = tree.velocity(p);
+                for k in new_from..np {
+                    let v = fast::gaussian_velocity([self.wake.x[k], self.wake.y[k]], self.wake.gamma[k], self.delta_sq, p);
+                    u[0] += v[0];
+                    u[1] += v[1];
+                }
+                u[0] += self.speed;
+                for (b, e) in self.bodies.iter().zip(&expansions) {
+                    let v = self.body_velocity(b, e, p);
+                    u[0] += v[0];
+                    u[1] += v[1];
+                }
+                u
+            })
             .collect();
         for i in 0..np {
             let u = vel[i];
