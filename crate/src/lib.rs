@@ -26,10 +26,12 @@
 pub mod case;
 pub mod conventions;
 pub mod error;
+pub mod export;
 pub mod fast;
 pub mod geometry;
 pub mod kernels;
 pub mod kinematics;
+pub mod link;
 pub mod sim;
 pub mod summary;
 pub mod validate;

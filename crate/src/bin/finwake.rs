@@ -14,6 +14,10 @@ use std::process::ExitCode;
 use clap::{Args, Parser, Subcommand};
 use finwake::{Case, CaseError, FoilSummary, Simulation, Summary, Water};
 
+// Kept beside this file, not in src/bin/, where cargo would take it for a binary of its own.
+#[path = "finwake/link.rs"]
+mod link;
+
 /// Exit status for bad input (arguments, case file, output paths).
 const EXIT_BAD_INPUT: u8 = 2;
 
@@ -30,6 +34,8 @@ enum Command {
     /// Run one case file and print its cycle statistics.
     Simulate(SimulateArgs),
     // Later subcommands (sweep, check, link) are added here, one variant each.
+    /// Print the page link that opens a case file, or decode a link back into a case file.
+    Link(link::LinkArgs),
 }
 
 #[derive(Debug, Args)]
@@ -67,6 +73,7 @@ fn main() -> ExitCode {
     };
     let result = match cli.command {
         Command::Simulate(args) => simulate(&args),
+        Command::Link(args) => link::run(&args).map_err(Failure::bad_input),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
