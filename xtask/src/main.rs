@@ -125,13 +125,16 @@ fn test_all() -> Result<()> {
         tools::cargo(&["test", "--workspace", "--doc"])
     })?;
     if !heavy.is_empty() {
-        stage.run(&format!("native tests (release: {})", heavy.join(", ")), || {
-            let mut args = vec!["test", "--release", "-p", "finwake"];
-            for name in &heavy {
-                args.extend(["--test", name.as_str()]);
-            }
-            tools::cargo(&args)
-        })?;
+        stage.run(
+            &format!("native tests (release: {})", heavy.join(", ")),
+            || {
+                let mut args = vec!["test", "--release", "-p", "finwake"];
+                for name in &heavy {
+                    args.extend(["--test", name.as_str()]);
+                }
+                tools::cargo(&args)
+            },
+        )?;
     }
 
     // The wasm package once, shared by the parity test and the site.

@@ -82,7 +82,11 @@ pub fn test_targets(root: &Path) -> Result<(Vec<String>, Vec<String>)> {
         let Some(name) = value("name") else { continue };
         let path = value("path").unwrap_or_else(|| format!("tests/{name}.rs"));
         let source = std::fs::read_to_string(root.join("crate").join(&path)).unwrap_or_default();
-        let opening: String = source.lines().take_while(|l| l.starts_with("//")).collect::<Vec<_>>().join("\n");
+        let opening: String = source
+            .lines()
+            .take_while(|l| l.starts_with("//"))
+            .collect::<Vec<_>>()
+            .join("\n");
         if opening.contains("--release") {
             heavy.push(name);
         } else {
