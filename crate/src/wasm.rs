@@ -326,3 +326,61 @@ impl WasmSim {
         to_js(&self.sim.summary())
     }
 }
+
+// ---------------------------------------------------------------------------------------------
+// Case links and exports (crate/src/link.rs, crate/src/export.rs), for the page's main thread.
+
+/// A JS `Error` named `name` with `message`.
+fn named_error(name: &str, message: &str) -> JsValue {
+    let js = js_sys::Error::new(message);
+    js.set_name(name);
+    js.into()
+}
+
+/// The link fragment (`v1;...`, without `#`) of a case-file JSON text. Throws a `CaseError` for
+/// a bad case.
+#[wasm_bindgen(js_name = caseToLink)]
+pub fn case_to_link(case_json: &str) -> Result<String, JsValue> {
+    let case = Case::from_json(case_json).map_err(|e| case_error(&e))?;
+    crate::link::encode(&case).map_err(|e| named_error("LinkError", &e.message))
+}
+
+/// A decoded link for the page.
+#[derive(Serialize)]
+#[serde(rename_all = "camelCase")]
+struct DecodedLink {
+    /// The case as case-file JSON.
+    case_json: String,
+    /// Fields ignored or reset, with their reasons.
+    notices: Vec<crate::link::LinkNotice>,
+    /// Notices beyond those listed.
+    more_notices: usize,
+}
+
+/// Decodes a link (an address, `#v1;...` or `v1;...`) into
+/// `{ caseJson, notices: [{ key, path, value, action, reason, used }], moreNotices }`. Throws an
+/// `Error` named `LinkError` for text that is not a case link.
+#[wasm_bindgen(js_name = linkToCase)]
+pub fn link_to_case(link: &str) -> Result<JsValue, JsValue> {
+    let d = crate::link::decode(link).map_err(|e| named_error("LinkError", &e.message))?;
+    to_js(&DecodedLink {
+        case_json: d.case.to_json(),
+        notices: d.notices,
+        more_notices: d.more_notices,
+    })
+}
+
+/// The header block (lines starting with `# `) of a time-history CSV of a case. Throws a
+/// `CaseError` for a bad case.
+#[wasm_bindgen(js_name = historyHeader)]
+pub fn history_header(case_json: &str) -> Result<String, JsValue> {
+    let case = Case::from_json(case_json).map_err(|e| case_error(&e))?;
+    Ok(crate::export::history_header(&case))
+}
+
+/// This build's version.
+#[wasm_bindgen(js_name = finwakeVersion)]
+#[must_use]
+pub fn finwake_version() -> String {
+    crate::export::FINWAKE_VERSION.to_string()
+}
