@@ -29,6 +29,10 @@ pub struct Case {
     /// Numerical settings; every field has a default.
     #[serde(default)]
     pub numerics: Numerics,
+    /// Tank and submergence for the rig check (`finwake check`); absent = not given. It does not
+    /// change the simulation.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rig: Option<RigSetup>,
 }
 
 /// Free stream and water.
@@ -69,6 +73,41 @@ pub struct Foil {
     pub pitch_lead: f64,
     /// deg. How far this foil's motion lags foil 0's (foil 0 must be 0).
     pub phase: f64,
+    /// Moving parts of this foil's rig for the rig check (`finwake check`); absent = none given.
+    /// It does not change the simulation.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rig: Option<FoilRig>,
+}
+
+/// Where the foils sit in the tank, for the rig check. The frame is the model's: y up, heave
+/// vertical, the span across the tank. Every field is optional; a check that needs a missing
+/// value is skipped and says so.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct RigSetup {
+    /// m. Depth of the case origin (y = 0) below the water surface at rest: a foil with y = 0
+    /// has its mean pose this deep (0 to 11000). Deeper foils have negative y.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub depth: Option<f64>,
+    /// m. Water depth of the tank or channel, surface at rest to floor (more than 0 to 11000,
+    /// and more than `depth`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub water_depth: Option<f64>,
+    /// m. Width of the tank or channel across the stream, along the span (more than 0 to 10000).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub tank_width: Option<f64>,
+}
+
+/// The moving parts of one foil's rig, for the rig check's actuator loads.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct FoilRig {
+    /// kg. Mass the heave actuator moves with this foil: foil, shaft, carriage, pitch drive
+    /// (0 to 10000; default 0 = body inertia left out).
+    pub moving_mass: f64,
+    /// kg m^2. Moment of inertia about the pitch axis of everything the pitch actuator turns
+    /// (0 to 10000; default 0 = body inertia left out).
+    pub pitch_inertia: f64,
 }
 
 /// Numerical settings. Oscillating cases use `panels`, `steps_per_cycle`, `cycles`; a case with

@@ -200,6 +200,7 @@ mod tests {
             pitch_mean: 0.0,
             pitch_lead: 90.0,
             phase: 0.0,
+            rig: None,
         }
     }
 

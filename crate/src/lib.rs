@@ -32,6 +32,7 @@ pub mod geometry;
 pub mod kernels;
 pub mod kinematics;
 pub mod link;
+pub mod rig;
 pub mod sim;
 pub mod summary;
 pub mod validate;

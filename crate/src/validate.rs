@@ -39,6 +39,11 @@
 //! | `numerics.time_step` | frequency 0 only; more than 0, at most one chord of travel of foil 0 | |
 //! | `numerics.duration` | frequency 0 only; at least one time step | |
 //! | all steps of a run | at most 2,000,000 | memory of the load history |
+//! | `rig.depth` | 0 to 11000 m, or null | the deepest ocean is about 11 km |
+//! | `rig.water_depth` | more than 0 to 11000 m and more than `rig.depth`, or null | the case origin is under water |
+//! | `rig.tank_width` | more than 0 to 10000 m, or null | |
+//! | `foils.*.rig.moving_mass` | 0 to 10000 kg | a tank rig's carriage is kilograms to a few hundred |
+//! | `foils.*.rig.pitch_inertia` | 0 to 10000 kg m^2 | |
 //!
 //! Every number must be finite. Geometry overlap between foils is checked by
 //! [`crate::Simulation::new`], which owns the section geometry.
@@ -85,6 +90,12 @@ pub const RAMP_CYCLES_MAX: f64 = 10.0;
 pub const STEP_TRAVEL_MAX_CHORDS: f64 = 1.0;
 /// Most time steps in one run.
 pub const MAX_TOTAL_STEPS: usize = 2_000_000;
+/// m. Deepest submergence and water depth of the rig check (the deepest ocean is about 11 km).
+pub const RIG_DEPTH_MAX: f64 = 11_000.0;
+/// m. Widest tank or channel.
+pub const TANK_WIDTH_MAX: f64 = 10_000.0;
+/// kg and kg m^2. Largest moving mass and pitch inertia of a foil's rig.
+pub const RIG_INERTIA_MAX: f64 = 10_000.0;
 
 /// Parses case-file JSON into a [`Case`] without range checks: syntax, then shape, then types.
 pub fn parse_case(text: &str) -> Result<Case, CaseError> {
@@ -281,6 +292,48 @@ const FOIL_KEYS: &[Key] = &[
         "deg, -360 to 360 (0 for foil 0)",
         "0.0",
     ),
+    key(
+        "rig",
+        Shape::Object(FOIL_RIG_KEYS),
+        false,
+        "an object with moving_mass, pitch_inertia (rig check only)",
+        "{\"moving_mass\": 2.0}",
+    ),
+];
+
+const FOIL_RIG_KEYS: &[Key] = &[
+    key("moving_mass", Shape::Number, false, "kg, 0 to 10000", "2.0"),
+    key(
+        "pitch_inertia",
+        Shape::Number,
+        false,
+        "kg m^2, 0 to 10000",
+        "0.001",
+    ),
+];
+
+const RIG_KEYS: &[Key] = &[
+    key(
+        "depth",
+        Shape::NumberOrNull,
+        false,
+        "m, depth of y = 0 below the surface, 0 to 11000, or null",
+        "0.5",
+    ),
+    key(
+        "water_depth",
+        Shape::NumberOrNull,
+        false,
+        "m, surface to floor, more than 0 to 11000, or null",
+        "1.5",
+    ),
+    key(
+        "tank_width",
+        Shape::NumberOrNull,
+        false,
+        "m, across the stream, more than 0 to 10000, or null",
+        "1.0",
+    ),
 ];
 
 const NUMERICS_KEYS: &[Key] = &[
@@ -371,6 +424,13 @@ const CASE_KEYS: &[Key] = &[
         false,
         "an object of numerical settings",
         "{\"panels\": 80}",
+    ),
+    key(
+        "rig",
+        Shape::Object(RIG_KEYS),
+        false,
+        "an object with depth, water_depth, tank_width (rig check only)",
+        "{\"depth\": 0.5}",
     ),
 ];
 
@@ -777,7 +837,72 @@ pub fn validate_case(case: &Case) -> Result<(), CaseError> {
         }
     }
 
-    validate_numerics(case)
+    validate_numerics(case)?;
+    validate_rig(case)
+}
+
+/// The rig-check keys (`rig` and `foils.*.rig`); they do not change the simulation.
+fn validate_rig(case: &Case) -> Result<(), CaseError> {
+    if let Some(rig) = &case.rig {
+        if let Some(d) = rig.depth {
+            check_f64(
+                "rig.depth",
+                d,
+                (0.0, RIG_DEPTH_MAX),
+                "0 to 11000 m (depth of y = 0 below the water surface), or null",
+                "give the depth below the surface of a foil at y = 0 in metres (e.g. 0.5), or remove it",
+            )?;
+        }
+        if let Some(h) = rig.water_depth {
+            if !in_range(h, 0.0, RIG_DEPTH_MAX, true) {
+                return Err(range_error(
+                    "rig.water_depth",
+                    h,
+                    "more than 0 and at most 11000 m, or null",
+                    "give the tank's water depth, surface to floor, in metres (e.g. 1.5), or remove it",
+                ));
+            }
+            if let Some(d) = rig.depth {
+                if h <= d {
+                    return Err(CaseError::new(
+                        "rig.water_depth",
+                        h.to_string(),
+                        format!("more than rig.depth = {d} m (the case origin is under water, above the floor)"),
+                        "give the water depth from the surface to the floor, or correct rig.depth",
+                    )
+                    .with_kind(ErrorKind::Inconsistent));
+                }
+            }
+        }
+        if let Some(w) = rig.tank_width {
+            if !in_range(w, 0.0, TANK_WIDTH_MAX, true) {
+                return Err(range_error(
+                    "rig.tank_width",
+                    w,
+                    "more than 0 and at most 10000 m, or null",
+                    "give the width of the tank or channel across the stream in metres (e.g. 1.0), or remove it",
+                ));
+            }
+        }
+    }
+    for (i, foil) in case.foils.iter().enumerate() {
+        let Some(rig) = &foil.rig else { continue };
+        check_f64(
+            &format!("foils.{i}.rig.moving_mass"),
+            rig.moving_mass,
+            (0.0, RIG_INERTIA_MAX),
+            "0 to 10000 kg",
+            "give the mass the heave actuator moves with this foil in kg (foil, shaft, carriage), or 0",
+        )?;
+        check_f64(
+            &format!("foils.{i}.rig.pitch_inertia"),
+            rig.pitch_inertia,
+            (0.0, RIG_INERTIA_MAX),
+            "0 to 10000 kg m^2",
+            "give the moment of inertia about the pitch axis in kg m^2 of all parts the pitch actuator turns, or 0",
+        )?;
+    }
+    Ok(())
 }
 
 fn validate_numerics(case: &Case) -> Result<(), CaseError> {

@@ -34,6 +34,9 @@ enum Command {
     /// Run one case file and print its cycle statistics.
     Simulate(SimulateArgs),
     // Later subcommands (sweep, check, link) are added here, one variant each.
+    /// Check a case before a tank test: Re, St, k, angle of attack, leading-edge suction,
+    /// cavitation, tank clearances, actuator loads and power, with cautions.
+    Check(CheckArgs),
     /// Print the page link that opens a case file, or decode a link back into a case file.
     Link(link::LinkArgs),
 }
@@ -73,6 +76,7 @@ fn main() -> ExitCode {
     };
     let result = match cli.command {
         Command::Simulate(args) => simulate(&args),
+        Command::Check(args) => check(&args),
         Command::Link(args) => link::run(&args).map_err(Failure::bad_input),
     };
     match result {
@@ -447,4 +451,39 @@ fn write_table(out: &mut impl Write, shown: &str, case: &Case, s: &Summary) -> i
         "Coefficients use 0.5 rho U^2 c s per foil (total: summed c s); efficiency = mean thrust x U / mean input power, n/a unless both are positive."
     )?;
     Ok(())
+}
+
+#[derive(Debug, Args)]
+struct CheckArgs {
+    /// Case file (JSON, version 1; the optional `rig` keys add the tank checks and body inertia).
+    #[arg(value_name = "CASE.json")]
+    case: PathBuf,
+    /// Print the check as JSON instead of text.
+    #[arg(long)]
+    json: bool,
+}
+
+/// `finwake check`: runs the case and prints the rig check of `finwake::rig`.
+fn check(args: &CheckArgs) -> Result<(), Failure> {
+    let shown = args.case.display().to_string();
+    let text = std::fs::read_to_string(&args.case)
+        .map_err(|e| Failure::bad_input(CaseError::io(shown.clone(), &e).to_string()))?;
+    let bad = |e: CaseError| Failure::bad_input(format!("{shown}: {e}"));
+    let case = Case::from_json(&text).map_err(bad)?;
+    let report = finwake::rig::check(&case).map_err(bad)?;
+    let printed = if args.json {
+        serde_json::to_string_pretty(&report).expect("a rig check always serialises") + "\n"
+    } else {
+        report.to_text(&shown)
+    };
+    let mut out = io::stdout().lock();
+    match out.write_all(printed.as_bytes()).and_then(|()| out.flush()) {
+        Ok(()) => Ok(()),
+        // A closed pipe (`finwake check ... | head`) is not an error of the check.
+        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => Ok(()),
+        Err(e) => Err(Failure {
+            message: format!("cannot write the check: {e}"),
+            code: 1,
+        }),
+    }
 }
