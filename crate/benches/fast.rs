@@ -11,7 +11,9 @@ fn wake(n: usize) -> Elements {
     let mut el = Elements::default();
     let mut s: u64 = 987654321;
     let mut rnd = || {
-        s = s.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        s = s
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
         (s >> 11) as f64 / (1u64 << 53) as f64
     };
     // Two vortex rows along 1 m per 1000 particles, 0.05 m apart, wavy, alternating signs.
@@ -28,28 +30,51 @@ fn wake(n: usize) -> Elements {
 fn main() {
     let tolerance = 1e-7;
     let theta = 0.5;
-    println!("{:>8} {:>12} {:>12} {:>10} {:>14}", "n", "direct s", "fast s", "speedup", "max rel error");
+    println!(
+        "{:>8} {:>12} {:>12} {:>10} {:>14}",
+        "n", "direct s", "fast s", "speedup", "max rel error"
+    );
     let mut rows = Vec::new();
     for n in [1_000usize, 10_000, 100_000] {
         let el = wake(n);
-        let sample: Vec<usize> = if n <= 10_000 { (0..n).collect() } else { (0..n).step_by(100).collect() };
+        let sample: Vec<usize> = if n <= 10_000 {
+            (0..n).collect()
+        } else {
+            (0..n).step_by(100).collect()
+        };
         let t0 = Instant::now();
-        let direct: Vec<[f64; 2]> = sample.iter().map(|&k| el.direct([el.x[k], el.y[k]]).0).collect();
+        let direct: Vec<[f64; 2]> = sample
+            .iter()
+            .map(|&k| el.direct([el.x[k], el.y[k]]).0)
+            .collect();
         let direct_s = t0.elapsed().as_secs_f64() * n as f64 / sample.len() as f64;
         let t0 = Instant::now();
         let tree = Tree::new(&el, theta, tolerance);
         let fast: Vec<[f64; 2]> = (0..n).map(|k| tree.eval([el.x[k], el.y[k]]).0).collect();
         let fast_s = t0.elapsed().as_secs_f64();
-        let scale = direct.iter().map(|w| (w[0] * w[0] + w[1] * w[1]).sqrt()).fold(0.0, f64::max);
+        let scale = direct
+            .iter()
+            .map(|w| (w[0] * w[0] + w[1] * w[1]).sqrt())
+            .fold(0.0, f64::max);
         let err = sample
             .iter()
             .zip(&direct)
             .map(|(&k, d)| ((fast[k][0] - d[0]).powi(2) + (fast[k][1] - d[1]).powi(2)).sqrt())
             .fold(0.0, f64::max)
             / scale;
-        println!("{n:>8} {direct_s:>12.4} {fast_s:>12.4} {:>10.1} {err:>14.2e}", direct_s / fast_s);
-        rows.push(format!("{{\"n\": {n}, \"speedup\": {:.2}, \"max_rel_error\": {err:.3e}}}", direct_s / fast_s));
+        println!(
+            "{n:>8} {direct_s:>12.4} {fast_s:>12.4} {:>10.1} {err:>14.2e}",
+            direct_s / fast_s
+        );
+        rows.push(format!(
+            "{{\"n\": {n}, \"speedup\": {:.2}, \"max_rel_error\": {err:.3e}}}",
+            direct_s / fast_s
+        ));
         std::hint::black_box(&fast);
     }
-    println!("fast_vs_direct = [{}]  (order {}, theta {theta}, error = max |du| / max |u|)", rows.join(", "), Tree::new(&wake(10), theta, tolerance).order());
+    println!(
+        "fast_vs_direct = [{}]  (order {}, theta {theta}, error = max |du| / max |u|)",
+        rows.join(", "),
+        Tree::new(&wake(10), theta, tolerance).order()
+    );
 }

@@ -80,7 +80,11 @@ pub fn gaussian_velocity(c: [f64; 2], gamma: f64, delta_sq: f64, p: [f64; 2]) ->
     if r2 == 0.0 {
         return [0.0, 0.0];
     }
-    let shield = if delta_sq > 0.0 { 1.0 - (-r2 / delta_sq).exp() } else { 1.0 };
+    let shield = if delta_sq > 0.0 {
+        1.0 - (-r2 / delta_sq).exp()
+    } else {
+        1.0
+    };
     let f = gamma * shield / (2.0 * PI * r2);
     [-f * dy, f * dx]
 }
@@ -143,7 +147,16 @@ impl Elements {
 
     /// m/s and m^2/s. Direct sum of velocity and stream function at `p` (the reference).
     pub fn direct(&self, p: [f64; 2]) -> ([f64; 2], f64) {
-        direct_range::<true>(&self.x, &self.y, &self.gamma, &self.source, &self.delta_sq, 0, self.len(), p)
+        direct_range::<true>(
+            &self.x,
+            &self.y,
+            &self.gamma,
+            &self.source,
+            &self.delta_sq,
+            0,
+            self.len(),
+            p,
+        )
     }
 }
 
@@ -169,7 +182,11 @@ fn direct_range<const PSI: bool>(
         let q = qs[k];
         if r2 > 0.0 {
             // exp(-36) is below round-off: skip the exponential outside six cores.
-            let shield = if d2 > 0.0 && r2 < 36.0 * d2 { 1.0 - (-r2 / d2).exp() } else { 1.0 };
+            let shield = if d2 > 0.0 && r2 < 36.0 * d2 {
+                1.0 - (-r2 / d2).exp()
+            } else {
+                1.0
+            };
             let inv = 1.0 / (2.0 * PI * r2);
             let fg = g * shield * inv;
             let fq = q * inv;
@@ -304,7 +321,9 @@ impl Tree {
                 stack[top + 1] = b;
                 top += 2;
             } else {
-                let (w, s) = direct_range::<PSI>(&self.xs, &self.ys, &self.gs, &self.qs, &self.d2s, cell.start, cell.end, p);
+                let (w, s) = direct_range::<PSI>(
+                    &self.xs, &self.ys, &self.gs, &self.qs, &self.d2s, cell.start, cell.end, p,
+                );
                 u += w[0];
                 v += w[1];
                 psi += s;
@@ -314,7 +333,13 @@ impl Tree {
     }
 }
 
-fn build(el: &Elements, idx: &mut [usize], start: usize, end: usize, cells: &mut Vec<Cell>) -> usize {
+fn build(
+    el: &Elements,
+    idx: &mut [usize],
+    start: usize,
+    end: usize,
+    cells: &mut Vec<Cell>,
+) -> usize {
     let slice = &mut idx[start..end];
     let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
     let mut core: f64 = 0.0;
@@ -329,7 +354,14 @@ fn build(el: &Elements, idx: &mut [usize], start: usize, end: usize, cells: &mut
         .map(|&i| ((el.x[i] - centre[0]).powi(2) + (el.y[i] - centre[1]).powi(2)).sqrt())
         .fold(0.0, f64::max);
     let me = cells.len();
-    cells.push(Cell { start, end, centre, radius, core: core.sqrt(), children: None });
+    cells.push(Cell {
+        start,
+        end,
+        centre,
+        radius,
+        core: core.sqrt(),
+        children: None,
+    });
     if end - start > LEAF {
         let axis = if hi[0] - lo[0] >= hi[1] - lo[1] { 0 } else { 1 };
         let mid = (end - start) / 2;
@@ -350,8 +382,17 @@ mod tests {
     fn e1_matches_tabulated_values() {
         // Abramowitz & Stegun 1964, table 5.1: E1(0.5) = 0.5597736, E1(1) = 0.2193839,
         // E1(2) = 0.04890051, E1(5) = 0.001148296.
-        for (x, e) in [(0.5, 0.5597736), (1.0, 0.2193839), (2.0, 0.04890051), (5.0, 0.001148296)] {
-            assert!((exp_integral_e1(x) / e - 1.0).abs() < 1e-6, "{x}: {}", exp_integral_e1(x));
+        for (x, e) in [
+            (0.5, 0.5597736),
+            (1.0, 0.2193839),
+            (2.0, 0.04890051),
+            (5.0, 0.001148296),
+        ] {
+            assert!(
+                (exp_integral_e1(x) / e - 1.0).abs() < 1e-6,
+                "{x}: {}",
+                exp_integral_e1(x)
+            );
         }
     }
 
@@ -367,7 +408,10 @@ mod tests {
                 - gaussian_stream_function(c, 0.8, 0.001, [p[0] - h, p[1]]))
                 / (2.0 * h);
             let w = gaussian_velocity(c, 0.8, 0.001, p);
-            assert!((u - w[0]).abs() < 1e-6 && (v - w[1]).abs() < 1e-6, "{u} {v} {w:?}");
+            assert!(
+                (u - w[0]).abs() < 1e-6 && (v - w[1]).abs() < 1e-6,
+                "{u} {v} {w:?}"
+            );
         }
     }
 
@@ -376,7 +420,9 @@ mod tests {
         let mut el = Elements::default();
         let mut s: u64 = 12345;
         let mut rnd = || {
-            s = s.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            s = s
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
             (s >> 11) as f64 / (1u64 << 53) as f64
         };
         for _ in 0..3000 {

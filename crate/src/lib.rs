@@ -35,6 +35,7 @@ pub mod link;
 pub mod rig;
 pub mod sim;
 pub mod summary;
+pub mod sweep;
 pub mod validate;
 #[cfg(feature = "wasm")]
 pub mod wasm;

@@ -527,7 +527,11 @@ impl Simulation {
         }
         // One fast-summation tree over the wake at this instant serves the shed points, the onset
         // flow on the foils and the convection.
-        let tree = fast::Tree::new(&self.wake.elements(self.delta_sq), TREE_THETA, TREE_TOLERANCE);
+        let tree = fast::Tree::new(
+            &self.wake.elements(self.delta_sq),
+            TREE_THETA,
+            TREE_TOLERANCE,
+        );
         // Newest shed point behind each trailing edge.
         for b in &mut self.bodies {
             let te = b.trailing_edge();
@@ -578,8 +582,11 @@ impl Simulation {
         let mut onset_phi: Vec<Vec<f64>> = Vec::with_capacity(self.bodies.len());
         for b in &mut self.bodies {
             let npan = b.panels();
-            let at_nodes: Vec<([f64; 2], f64)> =
-                b.nodes.iter().map(|&p| free_flow(p, &self.wake, self.delta_sq)).collect();
+            let at_nodes: Vec<([f64; 2], f64)> = b
+                .nodes
+                .iter()
+                .map(|&p| free_flow(p, &self.wake, self.delta_sq))
+                .collect();
             let psi: Vec<f64> = b
                 .nodes
                 .iter()
@@ -593,8 +600,11 @@ impl Simulation {
                 })
                 .collect();
             let un: Vec<[f64; 2]> = at_nodes.iter().map(|f| f.0).collect();
-            let um: Vec<[f64; 2]> =
-                b.mids.iter().map(|&p| free_flow(p, &self.wake, self.delta_sq).0).collect(); // psi unused at mids
+            let um: Vec<[f64; 2]> = b
+                .mids
+                .iter()
+                .map(|&p| free_flow(p, &self.wake, self.delta_sq).0)
+                .collect(); // psi unused at mids
             let mut phi = vec![0.0; npan];
             let mut acc = 0.0;
             for j in 0..npan {
@@ -978,7 +988,12 @@ impl Simulation {
                 pb *= zb;
             }
         }
-        BodyExpansion { centre: c, radius, core: core.min(self.delta_sq.sqrt()), moments: m }
+        BodyExpansion {
+            centre: c,
+            radius,
+            core: core.min(self.delta_sq.sqrt()),
+            moments: m,
+        }
     }
 
     /// m/s. Velocity of foil `b` at `p`: its expansion far away, direct sums near it.
@@ -1003,14 +1018,20 @@ impl Simulation {
     fn convect(&mut self, t: f64, tree: &fast::Tree) {
         let np = self.wake.len();
         let new_from = np - self.bodies.len();
-        let expansions: Vec<BodyExpansion> = self.bodies.iter().map(|b| self.body_expansion(b)).collect();
+        let expansions: Vec<BodyExpansion> =
+            self.bodies.iter().map(|b| self.body_expansion(b)).collect();
         let vel: Vec<[f64; 2]> = (0..np)
             .map(|i| {
                 let p = [self.wake.x[i], self.wake.y[i]];
                 // The tree holds the particles of the start of the step; add this step's new ones.
                 let mut u = tree.velocity(p);
                 for k in new_from..np {
-                    let v = fast::gaussian_velocity([self.wake.x[k], self.wake.y[k]], self.wake.gamma[k], self.delta_sq, p);
+                    let v = fast::gaussian_velocity(
+                        [self.wake.x[k], self.wake.y[k]],
+                        self.wake.gamma[k],
+                        self.delta_sq,
+                        p,
+                    );
                     u[0] += v[0];
                     u[1] += v[1];
                 }

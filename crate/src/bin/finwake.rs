@@ -17,6 +17,8 @@ use finwake::{Case, CaseError, FoilSummary, Simulation, Summary, Water};
 // Kept beside this file, not in src/bin/, where cargo would take it for a binary of its own.
 #[path = "finwake/link.rs"]
 mod link;
+#[path = "finwake/sweep.rs"]
+mod sweep;
 
 /// Exit status for bad input (arguments, case file, output paths).
 const EXIT_BAD_INPUT: u8 = 2;
@@ -39,6 +41,9 @@ enum Command {
     Check(CheckArgs),
     /// Print the page link that opens a case file, or decode a link back into a case file.
     Link(link::LinkArgs),
+    /// Run a grid over one or two case keys on all cores; each foil's thrust and efficiency
+    /// are also given relative to an isolated foil with the same motion.
+    Sweep(sweep::SweepArgs),
 }
 
 #[derive(Debug, Args)]
@@ -78,6 +83,7 @@ fn main() -> ExitCode {
         Command::Simulate(args) => simulate(&args),
         Command::Check(args) => check(&args),
         Command::Link(args) => link::run(&args).map_err(Failure::bad_input),
+        Command::Sweep(args) => sweep::run(&args).map_err(Failure::bad_input),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
