@@ -197,6 +197,26 @@ pub const KEYS: &[LinkKey] = &[
         D::Number(1.0),
         "cycles",
     ),
+    // Rig check (crate/src/rig.rs): tank and submergence, and each foil's moving parts.
+    row("rig", "rig", Kind::Present, D::Absent, "-"),
+    row("depth", "rig.depth", Number, D::Absent, "m"),
+    row("wdepth", "rig.water_depth", Number, D::Absent, "m"),
+    row("width", "rig.tank_width", Number, D::Absent, "m"),
+    row("rig", "foils.*.rig", Kind::Present, D::Absent, "-"),
+    row(
+        "mass",
+        "foils.*.rig.moving_mass",
+        Number,
+        D::Number(0.0),
+        "kg",
+    ),
+    row(
+        "inertia",
+        "foils.*.rig.pitch_inertia",
+        Number,
+        D::Number(0.0),
+        "kg m^2",
+    ),
 ];
 
 /// Prefix of per-foil case paths in [`KEYS`].

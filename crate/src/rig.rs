@@ -663,11 +663,15 @@ fn extremes(foil: &Foil, motion: &Motion, speed: f64, panels: usize) -> Extremes
 }
 
 /// Heave and pitch accelerations (m/s^2, rad/s^2) at `t`, by central differences of the exact
-/// rates over a ten-thousandth of a period (relative error below 1e-7).
+/// rates over a ten-thousandth of a period (relative error (2 pi 1e-4)^2 / 6, below 1e-7). From
+/// the end of the smooth start on, the motion without the ramp is differenced (the same poses,
+/// without the kink of the ramp's end inside the difference).
 fn accelerations(m: &Motion, t: f64) -> (f64, f64) {
     if m.omega == 0.0 {
         return (0.0, 0.0);
     }
+    let steady = m.without_ramp();
+    let m = if t >= m.ramp_time { &steady } else { m };
     let h = 1e-4 * 2.0 * PI / m.omega;
     let (a, b) = (m.pose(t - h), m.pose(t + h));
     (
