@@ -250,16 +250,55 @@ impl Tree {
             theta,
         };
         tree.moments = vec![C64::new(0.0, 0.0); tree.cells.len() * (order + 1)];
-        for ci in 0..tree.cells.len() {
+        // Leaves sum their elements; a parent shifts its children's moments to its own centre
+        // (children always come after their parent, so a reverse sweep sees them first):
+        // a_n(parent) = sum_k C(n, k) a_k(child) d^(n - k), d = child centre - parent centre.
+        let mut binom = vec![0.0; (order + 1) * (order + 1)];
+        for n in 0..=order {
+            binom[n * (order + 1)] = 1.0;
+            for k in 1..=n {
+                binom[n * (order + 1) + k] = binom[(n - 1) * (order + 1) + k - 1]
+                    + if k < n {
+                        binom[(n - 1) * (order + 1) + k]
+                    } else {
+                        0.0
+                    };
+            }
+        }
+        let mut dpow = vec![C64::new(0.0, 0.0); order + 1];
+        for ci in (0..tree.cells.len()).rev() {
             let cell = tree.cells[ci];
             let base = ci * (order + 1);
-            for k in cell.start..cell.end {
-                let s = C64::new(tree.qs[k], -tree.gs[k]) / (2.0 * PI);
-                let xi = C64::new(tree.xs[k] - cell.centre[0], tree.ys[k] - cell.centre[1]);
-                let mut pw = s;
-                for m in 0..=order {
-                    tree.moments[base + m] += pw;
-                    pw *= xi;
+            match cell.children {
+                None => {
+                    for k in cell.start..cell.end {
+                        let s = C64::new(tree.qs[k], -tree.gs[k]) / (2.0 * PI);
+                        let xi = C64::new(tree.xs[k] - cell.centre[0], tree.ys[k] - cell.centre[1]);
+                        let mut pw = s;
+                        for m in 0..=order {
+                            tree.moments[base + m] += pw;
+                            pw *= xi;
+                        }
+                    }
+                }
+                Some((a, b)) => {
+                    for child in [a, b] {
+                        let cc = tree.cells[child].centre;
+                        let d = C64::new(cc[0] - cell.centre[0], cc[1] - cell.centre[1]);
+                        dpow[0] = C64::new(1.0, 0.0);
+                        for m in 1..=order {
+                            dpow[m] = dpow[m - 1] * d;
+                        }
+                        let cb = child * (order + 1);
+                        for n in 0..=order {
+                            let mut acc = C64::new(0.0, 0.0);
+                            for k in 0..=n {
+                                acc +=
+                                    tree.moments[cb + k] * dpow[n - k] * binom[n * (order + 1) + k];
+                            }
+                            tree.moments[base + n] += acc;
+                        }
+                    }
                 }
             }
         }
@@ -295,7 +334,7 @@ impl Tree {
             let cell = &self.cells[stack[top]];
             let ci = stack[top];
             let dz = C64::new(p[0] - cell.centre[0], p[1] - cell.centre[1]);
-            let d = dz.norm();
+            let d = (dz.re * dz.re + dz.im * dz.im).sqrt();
             if cell.radius < self.theta * d && d - cell.radius > CORE_CUT * cell.core {
                 let base = ci * (self.order + 1);
                 let t = C64::new(1.0, 0.0) / dz;
