@@ -176,12 +176,12 @@ pub struct Point {
     pub efficiency_ratio: Vec<Option<f64>>,
 }
 
+/// One grid point before it runs: its swept values and its case, or why it cannot run.
+pub type GridPoint = (Vec<f64>, Result<Case, CaseError>);
+
 /// All grid points of `axes` applied to `case` (row-major), each as its values and its case or
 /// the validation error of that configuration. Fails only for a bad key or too many points.
-pub fn grid(
-    case: &Case,
-    axes: &[Axis],
-) -> Result<Vec<(Vec<f64>, Result<Case, CaseError>)>, CaseError> {
+pub fn grid(case: &Case, axes: &[Axis]) -> Result<Vec<GridPoint>, CaseError> {
     let total: usize = axes.iter().map(|a| a.count).product();
     if axes.is_empty() || axes.len() > 2 || total > MAX_POINTS {
         return Err(CaseError::new(
