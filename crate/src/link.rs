@@ -660,6 +660,10 @@ impl Scope {
 struct Given {
     /// Concrete case path (`foils.1.chord`).
     path: String,
+    /// Where it goes: the case or a foil.
+    scope: Scope,
+    /// Its row in [`KEYS`].
+    row: usize,
     /// Parsed value.
     value: Value,
     /// The key as written (for notices).
@@ -729,7 +733,7 @@ pub fn decode(link: &str) -> Result<Decoded, LinkError> {
             }
         };
         if value.chars().count() > MAX_VALUE_CHARS {
-            let path = resolve(&key).map(|(p, _)| p).unwrap_or_default();
+            let path = resolve(&key).map(|r| r.0).unwrap_or_default();
             notices.reset(
                 &key,
                 &path,
@@ -757,7 +761,7 @@ pub fn decode(link: &str) -> Result<Decoded, LinkError> {
             }
             continue;
         }
-        let (path, k) = match resolve(&key) {
+        let (path, scope, row) = match resolve(&key) {
             Ok(found) => found,
             Err(reason) => {
                 notices.ignored(&key, "", &value, &reason);
@@ -773,9 +777,11 @@ pub fn decode(link: &str) -> Result<Decoded, LinkError> {
             );
             continue;
         }
-        match parse_value(k.kind, &value) {
+        match parse_value(KEYS[row].kind, &value) {
             Ok(v) => given.push(Given {
                 path,
+                scope,
+                row,
                 value: v,
                 key,
                 text: value,
@@ -844,7 +850,8 @@ pub fn decode(link: &str) -> Result<Decoded, LinkError> {
 }
 
 /// The case path and row of a link key (`1.x` -> `foils.1.x`).
-fn resolve(key: &str) -> Result<(String, &'static LinkKey), String> {
+/// The case path, scope and [`KEYS`] row of a link key (`1.x` -> `foils.1.x`).
+fn resolve(key: &str) -> Result<(String, Scope, usize), String> {
     if key.starts_with(|c: char| c.is_ascii_digit()) {
         let (index, name) = key
             .split_once('.')
@@ -861,20 +868,18 @@ fn resolve(key: &str) -> Result<(String, &'static LinkKey), String> {
                 MAX_FOILS - 1
             ));
         }
-        let k = KEYS
+        let row = KEYS
             .iter()
-            .find(|k| k.key == name && k.foil_field().is_some())
+            .position(|k| k.key == name && k.foil_field().is_some())
             .ok_or_else(|| unknown_key(true))?;
-        Ok((
-            format!("foils.{i}.{}", k.foil_field().unwrap_or_default()),
-            k,
-        ))
+        let s = Scope::Foil(i);
+        Ok((s.path(&KEYS[row]), s, row))
     } else {
-        let k = KEYS
+        let row = KEYS
             .iter()
-            .find(|k| k.key == key && k.foil_field().is_none())
+            .position(|k| k.key == key && k.foil_field().is_none())
             .ok_or_else(|| unknown_key(false))?;
-        Ok((k.path.to_string(), k))
+        Ok((KEYS[row].path.to_string(), Scope::Case, row))
     }
 }
 
@@ -901,7 +906,18 @@ fn foil_index(path: &str) -> Option<usize> {
 
 /// Builds the case tree: `v1` defaults, foil 0's values for later foils, then the given values.
 fn build_tree(given: &[Given], foils: usize) -> Value {
-    let mut tree = build_scope(given, Scope::Case, Map::new());
+    // The given value of every (scope, row): scope 0 is the case, 1 + i is foil i.
+    let mut lookup: Vec<Vec<Option<&Value>>> = vec![vec![None; KEYS.len()]; 1 + foils];
+    for g in given {
+        let at = match g.scope {
+            Scope::Case => 0,
+            Scope::Foil(i) => 1 + i,
+        };
+        if let Some(slot) = lookup.get_mut(at) {
+            slot[g.row] = Some(&g.value);
+        }
+    }
+    let mut tree = build_scope(&lookup[0], Scope::Case, Map::new());
     set(&mut tree, "version", Value::from(CASE_VERSION));
     let mut list = Vec::with_capacity(foils);
     for i in 0..foils {
@@ -909,51 +925,59 @@ fn build_tree(given: &[Given], foils: usize) -> Value {
             Some(Value::Object(foil0)) => foil0.clone(),
             _ => Map::new(),
         };
-        list.push(build_scope(given, Scope::Foil(i), base));
+        list.push(build_scope(&lookup[1 + i], Scope::Foil(i), base));
     }
     set(&mut tree, "foils", Value::Array(list));
     tree
 }
 
+/// Row number of the optional group (a [`Kind::Present`] row) each row of [`KEYS`] lies in.
+fn groups() -> &'static [Option<usize>] {
+    static GROUPS: std::sync::OnceLock<Vec<Option<usize>>> = std::sync::OnceLock::new();
+    GROUPS.get_or_init(|| {
+        KEYS.iter()
+            .map(|k| group_of(k.path).and_then(|g| KEYS.iter().position(|r| r.path == g.path)))
+            .collect()
+    })
+}
+
 /// The object of one scope: `base` (foil 0's object for later foils, else empty), optional
-/// groups added or removed, then defaults and given values.
-fn build_scope(given: &[Given], s: Scope, base: Map<String, Value>) -> Value {
-    let find = |k: &LinkKey| {
-        let path = s.path(k);
-        given.iter().find(|g| g.path == path).map(|g| &g.value)
-    };
+/// groups added or removed, then defaults and the given values (`given[row]`).
+fn build_scope(given: &[Option<&Value>], s: Scope, base: Map<String, Value>) -> Value {
+    let groups = groups();
     let mut obj = Value::Object(base);
-    let rows = || KEYS.iter().filter(|k| s.holds(k));
-    let in_group = |k: &LinkKey, g: &LinkKey| group_of(k.path).is_some_and(|gg| gg.path == g.path);
-    for g in rows().filter(|k| k.kind == Kind::Present) {
-        let inherited = get(&obj, s.relative(g)).is_some_and(Value::is_object);
-        let present = match find(g) {
+    let rows = || (0..KEYS.len()).filter(|&n| s.holds(&KEYS[n]));
+    for g in rows().filter(|&n| KEYS[n].kind == Kind::Present) {
+        let gk = &KEYS[g];
+        let inherited = get(&obj, s.relative(gk)).is_some_and(Value::is_object);
+        let present = match given[g] {
             Some(Value::Null) => false,
             Some(_) => true,
-            None => inherited || rows().any(|k| in_group(k, g) && find(k).is_some()),
+            None => inherited || rows().any(|n| groups[n] == Some(g) && given[n].is_some()),
         };
         if present && !inherited {
             let mut group = Value::Object(Map::new());
-            for k in rows().filter(|k| in_group(k, g)) {
-                if let Some(v) = default_value(k.default) {
-                    let inner = &s.relative(k)[s.relative(g).len() + 1..];
+            for n in rows().filter(|&n| groups[n] == Some(g)) {
+                if let Some(v) = default_value(KEYS[n].default) {
+                    let inner = &s.relative(&KEYS[n])[s.relative(gk).len() + 1..];
                     set(&mut group, inner, v);
                 }
             }
-            set(&mut obj, s.relative(g), group);
+            set(&mut obj, s.relative(gk), group);
         } else if !present {
-            remove(&mut obj, s.relative(g));
+            remove(&mut obj, s.relative(gk));
         }
     }
-    for k in rows().filter(|k| k.kind != Kind::Present) {
-        if let Some(g) = group_of(k.path) {
-            if !get(&obj, s.relative(g)).is_some_and(Value::is_object) {
+    for n in rows().filter(|&n| KEYS[n].kind != Kind::Present) {
+        let k = &KEYS[n];
+        if let Some(g) = groups[n] {
+            if !get(&obj, s.relative(&KEYS[g])).is_some_and(Value::is_object) {
                 continue;
             }
         }
-        if let Some(v) = find(k) {
+        if let Some(v) = given[n] {
             set(&mut obj, s.relative(k), v.clone());
-        } else if s.inherits().is_none() && group_of(k.path).is_none() {
+        } else if s.inherits().is_none() && groups[n].is_none() {
             if let Some(v) = default_value(k.default) {
                 set(&mut obj, s.relative(k), v);
             }
@@ -987,7 +1011,8 @@ fn check(tree: Value) -> Result<Case, CaseError> {
 
 /// Applies the given values, resetting those that break a case-file rule until the case is
 /// valid. Every round resets at least one given value, so this ends after at most
-/// `given.len() + 1` rounds; the `v1` defaults alone always make a valid case.
+/// `given.len() + 1` rounds of at most `2 + log2(given.len())` checks each; the `v1` defaults
+/// alone make a valid case.
 fn settle(given: &mut Vec<Given>, foils: usize, notices: &mut Notices) -> Case {
     loop {
         let err = match check(build_tree(given, foils)) {
@@ -1000,16 +1025,27 @@ fn settle(given: &mut Vec<Given>, foils: usize, notices: &mut Notices) -> Case {
             notices.reset(&g.key, &g.path, &g.text, &err.to_string());
             continue;
         }
-        // Otherwise a default or inherited value breaks a rule together with given values: find
-        // the first given value whose reset clears this error.
-        let culprit = (0..given.len()).find(|&i| {
-            let mut trial = given.clone();
-            trial.remove(i);
-            match check(build_tree(&trial, foils)) {
-                Ok(_) => true,
-                Err(e) => e.path != err.path,
+        // Otherwise a default or inherited value breaks a rule together with given values. The
+        // defaults alone pass and all given values fail at this path: bisect the link order for
+        // the first value after which the error appears (log2 of the given values' checks).
+        let fails_here = |k: usize| match check(build_tree(&given[..k], foils)) {
+            Ok(_) => false,
+            Err(e) => e.path == err.path,
+        };
+        let culprit = if given.is_empty() || fails_here(0) {
+            None
+        } else {
+            let (mut lo, mut hi) = (0, given.len());
+            while hi - lo > 1 {
+                let mid = (lo + hi) / 2;
+                if fails_here(mid) {
+                    hi = mid;
+                } else {
+                    lo = mid;
+                }
             }
-        });
+            Some(hi - 1)
+        };
         match culprit {
             Some(i) => {
                 let g = given.remove(i);
