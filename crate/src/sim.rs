@@ -497,19 +497,9 @@ impl Simulation {
             if bi == i {
                 continue;
             }
-            let n = b.panels();
-            for k in 1..n {
-                let core = b.lengths[k - 1].max(b.lengths[k]);
-                let d2 = (core * core).min(self.delta_sq);
-                let v = fast::gaussian_velocity(b.nodes[k], b.mu[k - 1] - b.mu[k], d2, p);
-                u[0] += v[0];
-                u[1] += v[1];
-            }
-            for k in 0..n {
-                let v = kernels::source_velocity(b.nodes[k], b.nodes[k + 1], p);
-                u[0] += v[0] * b.sigma[k];
-                u[1] += v[1] * b.sigma[k];
-            }
+            let v = self.body_velocity_direct(b, p);
+            u[0] += v[0];
+            u[1] += v[1];
         }
         u
     }
