@@ -26,8 +26,8 @@ export const FOIL_SPEC = [
   { field: "pitch_lead", label: "Pitch lead ψ", unit: "deg", min: -180, max: 180, step: 1, note: "90 = feathering" },
   { field: "pivot", label: "Pivot x_p/c", unit: "of c", min: 0, max: 1, step: 0.01, note: "from the leading edge" },
   { field: "phase", label: "Phase lag φ", unit: "deg", min: 0, max: 360, step: 1, hindOnly: true, note: "behind foil 0" },
-  { field: "x", label: "Gap", unit: "c fore", min: 0.1, max: 8, step: 0.05, hindOnly: true, kind: "gap", note: "fore trailing edge to this leading edge" },
-  { field: "y", label: "Vertical offset", unit: "c fore", min: -3, max: 3, step: 0.05, hindOnly: true, kind: "offset", note: "leading edge above the fore one" },
+  { field: "x", label: "Gap", unit: "c fore", min: 0.1, max: 8, step: 0.05, hindOnly: true, kind: "gap", note: "fore TE to this LE" },
+  { field: "y", label: "Vertical offset", unit: "c fore", min: -3, max: 3, step: 0.05, hindOnly: true, kind: "offset", note: "LE above the fore LE" },
 ];
 
 /** Numerical settings. */

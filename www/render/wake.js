@@ -177,9 +177,15 @@ export class WakeView {
       ctx.arc(this.toCssX(pv[0]), this.toCssY(pv[1]), 2.5, 0, 2 * Math.PI);
       ctx.fillStyle = "#1d2430";
       ctx.fill();
-      ctx.fillStyle = FOIL_COLOURS[k % FOIL_COLOURS.length];
+      // Label above the leading edge, outlined in the background colour to stay legible over
+      // the wake.
+      const lx = this.toCssX(le[0]) - 8, ly = this.toCssY(Math.max(le[1], te[1])) - 14;
       ctx.font = "600 12px system-ui, sans-serif";
-      ctx.fillText(`foil ${k}`, this.toCssX(le[0]) - 8, this.toCssY(Math.max(le[1], te[1])) - 14);
+      ctx.lineWidth = 3;
+      ctx.strokeStyle = BG;
+      ctx.strokeText(`foil ${k}`, lx, ly);
+      ctx.fillStyle = FOIL_COLOURS[k % FOIL_COLOURS.length];
+      ctx.fillText(`foil ${k}`, lx, ly);
     });
   }
 

@@ -229,7 +229,7 @@ export class Controls {
 
   describeAllowed(field) {
     if (field.spec.kind === "gap" || field.spec.kind === "offset") {
-      field.allowed.textContent = "allowed: any position where the foils never touch during the motion (the solver checks)";
+      field.allowed.textContent = "allowed: any, as long as the foils never touch (the solver checks)";
       return;
     }
     const [lo, hi] = this.allowedRange(field.spec);
@@ -247,7 +247,7 @@ export class Controls {
         const i = s.foil;
         const fore = cand.foils[i - 1];
         const le = cand.foils[i].x - fore.x;
-        f.beside.textContent = `${s.note}; leading edge to leading edge ${fmt(le / fore.chord)} c = ${fmt(le)} m`;
+        f.beside.textContent = `${s.note}; LE to LE ${fmt(le / fore.chord)} c = ${fmt(le)} m`;
       } else if (s.kind === "offset") {
         const i = s.foil;
         f.beside.textContent = `${s.note}: ${fmt(cand.foils[i].y - cand.foils[i - 1].y)} m`;
