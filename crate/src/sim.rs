@@ -486,24 +486,6 @@ impl Simulation {
         &self.bodies[i].cp
     }
 
-    /// m/s. Velocity at `p` (m) induced by the free stream, the free wake and every foil except
-    /// foil `i` (the onset flow foil `i`'s own panels answer), with the wake as in
-    /// [`Simulation::particles`]. Thin-aerofoil quantities such as the leading-edge suction
-    /// parameter integrate it along the chord. The foil terms are those of `velocity_at`.
-    pub fn velocity_without_foil(&self, i: usize, p: [f64; 2]) -> [f64; 2] {
-        let mut u = self.wake.velocity(p, self.delta_sq);
-        u[0] += self.speed;
-        for (bi, b) in self.bodies.iter().enumerate() {
-            if bi == i {
-                continue;
-            }
-            let v = self.body_velocity_direct(b, p);
-            u[0] += v[0];
-            u[1] += v[1];
-        }
-        u
-    }
-
     /// Advances one time step (solve, loads, wake convection). Does nothing once finished.
     pub fn step(&mut self) {
         if self.is_finished() {
