@@ -384,3 +384,11 @@ pub fn history_header(case_json: &str) -> Result<String, JsValue> {
 pub fn finwake_version() -> String {
     crate::export::FINWAKE_VERSION.to_string()
 }
+
+/// The rig check of a case (see [`crate::rig`]) as JSON text: `water`, `checks` (each with `id`,
+/// `foil`, `status`, `value`, `limit`, `source`, `message`), `skipped`, `loads` and `cautions`.
+/// It runs the whole case, as long as a run to the end. Throws a `CaseError` if the case is bad.
+#[wasm_bindgen(js_name = rigCheck)]
+pub fn rig_check(case_json: &str) -> Result<String, JsValue> {
+    crate::rig::check_json(case_json).map_err(|e| case_error(&e))
+}
