@@ -73,8 +73,8 @@ fn main() {
         std::hint::black_box(&fast);
     }
     println!(
-        "fast_vs_direct = [{}]  (order {}, theta {theta}, error = max |du| / max |u|)",
-        rows.join(", "),
+        "order {}, theta {theta}; error = max |du| / max |u| over the sampled targets",
         Tree::new(&wake(10), theta, tolerance).order()
     );
+    println!("FAST_VS_DIRECT_JSON [{}]", rows.join(", "));
 }

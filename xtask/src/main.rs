@@ -5,6 +5,9 @@
 //! * `cargo xtask test`: every check, failing fast: fmt, clippy (native and wasm32), native tests
 //!   (debug and the release-profile validation tests), the wasm parity test under node, the site
 //!   build, and the browser tests in headless Chromium.
+//! * `cargo xtask bench`: the speed figures in one run (fast summation against the direct sum,
+//!   native and wasm run times, the page's solver steps per second, a 12 x 12 sweep), written to
+//!   `${CARGO_TARGET_DIR:-target}/bench/summary.json`.
 //! * `cargo xtask parity-native CASE STEPS OUT`: the native half of the wasm parity test.
 //!
 //! On a fresh clone it installs what it needs: the wasm32 target, the wasm-bindgen command line of
@@ -12,6 +15,7 @@
 //!
 //! Build output goes under `${CARGO_TARGET_DIR:-target}`.
 
+mod bench;
 mod parity;
 mod serve;
 mod site;
@@ -25,6 +29,7 @@ const USAGE: &str = "usage:
   cargo xtask serve [--port N]     build the site and serve it on 127.0.0.1 (default port 8000)
   cargo xtask site DIR             write the complete static site into DIR
   cargo xtask test                 run every check (native, wasm, browser)
+  cargo xtask bench                speed figures in one run; writes target/bench/summary.json
   cargo xtask parity-native CASE STEPS OUT
                                    native step record for the wasm parity test";
 
@@ -42,6 +47,7 @@ fn main() -> ExitCode {
             )),
         },
         Some("test") if args.len() == 1 => test_all(),
+        Some("bench") if args.len() == 1 => bench::bench(),
         Some("parity-native") if args.len() == 4 => {
             let steps = args[2]
                 .parse::<usize>()

@@ -1,0 +1,177 @@
+//! `cargo xtask bench`: one run that prints the speed table and writes
+//! `${CARGO_TARGET_DIR:-target}/bench/summary.json` with `fast_vs_direct` (speed-up and largest
+//! error of the fast summation at 1e3, 1e4, 1e5 blobs), `tandem_10_cycles_native_s`,
+//! `wasm_over_native` (the same run in the wasm build under node), `page_steps_per_second`
+//! (default case in headless Chromium) and `sweep_12x12_cli_s`. Figures, not pass/fail: the
+//! targets are printed beside them.
+
+use std::process::Command;
+use std::time::Instant;
+
+use crate::{site, tools, Result};
+
+fn capture(cmd: &mut Command) -> Result<String> {
+    let out = cmd
+        .output()
+        .map_err(|e| format!("cannot start {cmd:?}: {e}"))?;
+    if !out.status.success() {
+        return Err(format!(
+            "{cmd:?} failed:\n{}",
+            String::from_utf8_lossy(&out.stderr)
+        ));
+    }
+    Ok(String::from_utf8_lossy(&out.stdout).into_owned())
+}
+
+fn timed(cmd: &mut Command, reps: usize) -> Result<f64> {
+    let mut best = f64::INFINITY;
+    for _ in 0..reps {
+        let t0 = Instant::now();
+        capture(cmd)?;
+        best = best.min(t0.elapsed().as_secs_f64());
+    }
+    Ok(best)
+}
+
+/// Runs every benchmark once and writes the summary.
+pub fn bench() -> Result<()> {
+    let root = tools::workspace_root();
+    let target = tools::target_dir();
+    let out_dir = target.join("bench");
+    std::fs::create_dir_all(&out_dir).map_err(|e| e.to_string())?;
+
+    println!("==> fast summation against the direct sum (cargo bench --bench fast)");
+    let text = capture(
+        tools::command("cargo")
+            .args(["bench", "-p", "finwake", "--bench", "fast"])
+            .current_dir(&root),
+    )?;
+    print!("{text}");
+    let fast_json = text
+        .lines()
+        .find_map(|l| l.strip_prefix("FAST_VS_DIRECT_JSON "))
+        .ok_or("the fast bench printed no FAST_VS_DIRECT_JSON line")?
+        .to_string();
+
+    println!("==> native command line, default tandem case, 10 cycles");
+    tools::cargo(&["build", "--release", "-p", "finwake", "--bin", "finwake"])?;
+    let cli = target
+        .join("release")
+        .join(format!("finwake{}", std::env::consts::EXE_SUFFIX));
+    let case_src = std::fs::read_to_string(root.join("cases").join("tandem-two-chords.json"))
+        .map_err(|e| e.to_string())?;
+    let mut case: serde_like::Value = serde_like::parse(&case_src);
+    case.set_cycles(10);
+    let case10 = out_dir.join("tandem-10-cycles.json");
+    std::fs::write(&case10, case.text()).map_err(|e| e.to_string())?;
+    let native_s = timed(
+        Command::new(&cli).args(["simulate", &case10.to_string_lossy(), "--json"]),
+        3,
+    )?;
+    println!("native: {native_s:.3} s (fastest of 3)");
+
+    println!("==> the same run in the wasm build under node");
+    tools::ensure_wasm_bindgen()?;
+    tools::ensure_npm_packages(&root)?;
+    let pkg = target.join("xtask").join("pkg");
+    site::build_wasm_pkg(&pkg)?;
+    let wasm_s: f64 = capture(
+        tools::command("node")
+            .arg("tests/bench/wasm-run.mjs")
+            .current_dir(&root)
+            .env("FINWAKE_PKG", &pkg)
+            .env("FINWAKE_CASE", &case10),
+    )?
+    .trim()
+    .parse()
+    .map_err(|e| format!("wasm run printed no time: {e}"))?;
+    println!("wasm: {wasm_s:.3} s (fastest of 3)");
+
+    println!("==> the page in headless Chromium (default case)");
+    let site_dir = target.join("xtask").join("site");
+    site::assemble_site(&site_dir, &pkg)?;
+    let chromium = tools::ensure_chromium()?;
+    let page = capture(
+        tools::command("node")
+            .arg("tests/bench/page-rate.mjs")
+            .current_dir(&root)
+            .env("FINWAKE_SITE", &site_dir)
+            .env("FINWAKE_CHROMIUM", &chromium),
+    )?;
+    let page = page.lines().last().unwrap_or("{}").to_string();
+    println!("page: {page}");
+    let page_sps = number_after(&page, "\"steps_per_second\":").unwrap_or(f64::NAN);
+
+    println!("==> 12 x 12 spacing-phase map from the command line (all cores)");
+    let sweep_s = timed(
+        Command::new(&cli).args([
+            "sweep",
+            &root
+                .join("cases")
+                .join("tandem-two-chords.json")
+                .to_string_lossy(),
+            "--vary",
+            "foils.1.x=0.2:0.5:12",
+            "--vary",
+            "foils.1.phase=0:330:12",
+        ]),
+        1,
+    )?;
+    println!("sweep 12 x 12: {sweep_s:.1} s");
+
+    let ratio = wasm_s / native_s;
+    let summary = format!(
+        "{{\n  \"fast_vs_direct\": {fast_json},\n  \"tandem_10_cycles_native_s\": {native_s:.4},\n  \"wasm_over_native\": {ratio:.3},\n  \"page_steps_per_second\": {page_sps:.1},\n  \"page\": {page},\n  \"sweep_12x12_cli_s\": {sweep_s:.2}\n}}\n"
+    );
+    let path = out_dir.join("summary.json");
+    std::fs::write(&path, &summary).map_err(|e| e.to_string())?;
+    println!();
+    println!("{:<34} {:>12} {:>16}", "figure", "measured", "target");
+    println!(
+        "{:<34} {:>12.3} {:>16}",
+        "tandem 10 cycles native (s)", native_s, "<= 1.5"
+    );
+    println!("{:<34} {:>12.3} {:>16}", "wasm / native", ratio, "<= 1.5");
+    println!(
+        "{:<34} {:>12.1} {:>16}",
+        "page solver steps/s", page_sps, ">= 300"
+    );
+    println!(
+        "{:<34} {:>12.1} {:>16}",
+        "sweep 12 x 12 CLI (s)", sweep_s, "<= 30"
+    );
+    println!("fast vs direct: {fast_json} (target at 1e5: speedup >= 30, error <= 1e-6)");
+    println!("wrote {}", path.display());
+    Ok(())
+}
+
+fn number_after(text: &str, key: &str) -> Option<f64> {
+    let rest = &text[text.find(key)? + key.len()..];
+    let end = rest.find([',', '}']).unwrap_or(rest.len());
+    rest[..end].trim().parse().ok()
+}
+
+/// Just enough JSON editing for the benchmark's case file (xtask has no JSON dependency).
+mod serde_like {
+    pub struct Value(String);
+
+    pub fn parse(text: &str) -> Value {
+        Value(text.to_string())
+    }
+
+    impl Value {
+        /// Sets `"cycles": N` in the numerics object.
+        pub fn set_cycles(&mut self, n: usize) {
+            let key = "\"cycles\":";
+            if let Some(i) = self.0.find(key) {
+                let rest = &self.0[i + key.len()..];
+                let end = rest.find([',', '}']).unwrap_or(rest.len());
+                self.0 = format!("{}{} {}{}", &self.0[..i], key, n, &rest[end..]);
+            }
+        }
+
+        pub fn text(&self) -> &str {
+            &self.0
+        }
+    }
+}
