@@ -8,6 +8,10 @@ import { WakeView } from "./render/wake.js";
 import { TimePlot } from "./plot/timeseries.js";
 import { Controls } from "./ui/controls.js";
 import { Readouts } from "./ui/readouts.js";
+import { Notices } from "./ui/notices.js";
+import { CaseFiles } from "./ui/files.js";
+import { ShareLink } from "./ui/share.js";
+import { Exports } from "./ui/exports.js";
 
 const $ = (id) => document.getElementById(id);
 const PLOT_COLOURS = ["#0f6f75", "#b3404a", "#8a7a1f", "#5b4fb0", "#3f8f3f", "#b36b1f", "#9c3f8a", "#4f7fa6"];
@@ -62,6 +66,15 @@ const perf = { steps: 0, stepMs: 0, draws: 0, frames: 0, since: performance.now(
 const main = new SolverClient("solver", onSolver, fault);
 const reference = new SolverClient("single-foil reference", onReference, fault);
 
+// Links, case files and exports (ui/share.js, ui/files.js, ui/exports.js).
+const notices = new Notices($("notices"));
+const files = new CaseFiles({
+  state, notices, saveButton: $("case-export"), fileInput: $("case-import"),
+  afterLoad: () => { wake.userMoved = false; rebuildControls(); restart(); },
+});
+const share = new ShareLink({ state, files, notices, root: $("share-export") });
+new Exports({ client: main, state, root: $("share-export"), wakeCanvas: $("wake"), plotCanvases: ["plot-thrust", "plot-lift", "plot-power"].map($) });
+
 if ("serviceWorker" in navigator) {
   // Offline use once loaded; the page works the same without it.
   navigator.serviceWorker.register("sw.js").catch(() => {});
@@ -76,7 +89,10 @@ async function loadPresets() {
   sel.replaceChildren(...presets.map((p, i) => new Option(p.title, String(i))));
   const d = Math.max(0, presets.findIndex((p) => p.file === DEFAULT_PRESET));
   sel.value = String(d);
-  state.load(presets[d].case);
+  const linked = await share.linkedCase();
+  if (linked) sel.append(new Option("(the case from the link)", "link", true, true));
+  state.load(linked ?? presets[d].case);
+  files.markClean();
   maybeStart();
 }
 
@@ -286,37 +302,11 @@ $("view-fit").addEventListener("click", () => { wake.userMoved = false; wake.fit
 $("preset").addEventListener("change", (e) => {
   const p = presets[Number(e.target.value)];
   if (!p) return;
-  state.load(p.case);
-  wake.userMoved = false;
-  rebuildControls();
-  restart();
+  files.replaceCase(p.case, `the example “${p.title}”`);
 });
 $("foil-count").addEventListener("click", () => {
-  if (state.values.foils.length >= 2) state.removeFoil(); else state.addFoil();
+  if (state.values.foils.length >= 2) files.change("The hind foil was removed.", () => state.removeFoil()); else state.addFoil();
   rebuildControls();
   restart();
   $("foil-count").focus();
-});
-$("case-export").addEventListener("click", () => {
-  const blob = new Blob([`${JSON.stringify(state.accepted ?? state.candidate(), null, 2)}\n`], { type: "application/json" });
-  const a = document.createElement("a");
-  a.href = URL.createObjectURL(blob);
-  a.download = "finwake-case.json";
-  a.click();
-  setTimeout(() => URL.revokeObjectURL(a.href), 1000);
-});
-$("case-import").addEventListener("change", async (e) => {
-  const file = e.target.files?.[0];
-  if (!file) return;
-  let parsed;
-  try {
-    parsed = JSON.parse(await file.text());
-    if (!parsed || !Array.isArray(parsed.foils) || !parsed.flow) throw new Error("not a case file (it needs flow and foils)");
-  } catch (err) {
-    controls.showCaseError({ path: "case", value: file.name, allowed: "a JSON case file", fix: err.message });
-    return;
-  }
-  state.load(parsed);
-  rebuildControls();
-  restart();
 });

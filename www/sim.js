@@ -1,11 +1,13 @@
 // The only module that imports the generated wasm package (./pkg, built by `cargo xtask site`).
-// It runs inside the solver worker (worker.js). Buffer layouts are documented in crate/src/wasm.rs:
+// It runs inside the solver worker (worker.js), and on the page's main thread for the link codec,
+// case-file checks and export header (pageCodec). Buffer layouts are documented in crate/src/wasm.rs:
 //   particles(): Float64Array [x_0..x_n-1, y_0..y_n-1, circulation_0..] (m, m, m^2/s CCW positive)
 //   outline(i):  Float64Array [x0, y0, x1, y1, ...] (m), trailing edge first, closed polygon
 //   advance(n):  Float64Array per step [time (s), foil 0 loads..., foil 1 loads...]
 //   loads():     Float64Array, loadStride() numbers per foil in the order of loadFields()
 import init, {
   WasmSim, loadFields, loadStride, caseLimits, derivedNumbers, checkCase,
+  caseToLink, linkToCase, normaliseCase, historyHeader, finwakeVersion,
 } from "./pkg/finwake.js";
 
 let ready = null;
@@ -54,4 +56,12 @@ export class SolverRun {
   }
   summary() { return this.sim.summary(); }
   free() { this.sim.free(); this.sim = null; }
+}
+
+/** The crate's link codec, case-file check and export header (crate/src/link.rs, export.rs) for
+ * the page's main thread (ui/share.js, ui/files.js, ui/exports.js); loads the module there. */
+export function pageCodec() {
+  return loadSolver().then(() => ({
+    caseToLink, linkToCase, normaliseCase, historyHeader, finwakeVersion, loadFields: loadFields(),
+  }));
 }

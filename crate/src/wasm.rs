@@ -353,18 +353,22 @@ struct DecodedLink {
     case_json: String,
     /// Fields ignored or reset, with their reasons.
     notices: Vec<crate::link::LinkNotice>,
+    /// The same, each as one line of text (as `finwake link --decode` prints them).
+    messages: Vec<String>,
     /// Notices beyond those listed.
     more_notices: usize,
 }
 
 /// Decodes a link (an address, `#v1;...` or `v1;...`) into
-/// `{ caseJson, notices: [{ key, path, value, action, reason, used }], moreNotices }`. Throws an
+/// `{ caseJson, notices: [{ key, path, value, action, reason, used }], messages, moreNotices }`
+/// (`messages` holds each notice as one line of text). Throws an
 /// `Error` named `LinkError` for text that is not a case link.
 #[wasm_bindgen(js_name = linkToCase)]
 pub fn link_to_case(link: &str) -> Result<JsValue, JsValue> {
     let d = crate::link::decode(link).map_err(|e| named_error("LinkError", &e.message))?;
     to_js(&DecodedLink {
         case_json: d.case.to_json(),
+        messages: d.notices.iter().map(ToString::to_string).collect(),
         notices: d.notices,
         more_notices: d.more_notices,
     })

@@ -10,15 +10,22 @@ const MAX_FILE_BYTES = 1 << 20;
 export class CaseFiles {
   /**
    * @param {{state: import("../state.js").PageState, notices: import("./notices.js").Notices,
-   *          afterLoad: () => void, saveButton: HTMLElement, fileInput: HTMLInputElement,
-   *          status: HTMLElement}} opts
+   *          afterLoad: () => void, saveButton: HTMLElement, fileInput: HTMLInputElement}} opts
    *   afterLoad rebuilds the controls and restarts the run after the state changed wholesale.
    */
-  constructor({ state, notices, afterLoad, saveButton, fileInput, status }) {
+  constructor({ state, notices, afterLoad, saveButton, fileInput }) {
     this.state = state;
     this.notices = notices;
     this.afterLoad = afterLoad;
-    this.status = status;
+    const tools = fileInput.closest(".case-file-tools") ?? fileInput.parentElement;
+    const hint = document.createElement("span");
+    hint.className = "drop-hint";
+    hint.textContent = "or drop a case file anywhere on the page";
+    this.status = document.createElement("span");
+    this.status.className = "share-status";
+    this.status.id = "case-file-status";
+    this.status.setAttribute("role", "status");
+    tools.append(hint, this.status);
     this.baseline = null; // the case as last loaded or saved (JSON text)
     saveButton.addEventListener("click", () => this.save());
     fileInput.addEventListener("change", () => {
