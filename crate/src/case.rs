@@ -87,14 +87,11 @@ pub struct Foil {
 pub struct RigSetup {
     /// m. Depth of the case origin (y = 0) below the water surface at rest: a foil with y = 0
     /// has its mean pose this deep (0 to 11000). Deeper foils have negative y.
-    #[serde(skip_serializing_if = "Option::is_none")]
     pub depth: Option<f64>,
     /// m. Water depth of the tank or channel, surface at rest to floor (more than 0 to 11000,
     /// and more than `depth`).
-    #[serde(skip_serializing_if = "Option::is_none")]
     pub water_depth: Option<f64>,
     /// m. Width of the tank or channel across the stream, along the span (more than 0 to 10000).
-    #[serde(skip_serializing_if = "Option::is_none")]
     pub tank_width: Option<f64>,
 }
 

@@ -1187,7 +1187,8 @@ mod tests {
 
     #[test]
     fn every_key_is_unique_and_every_path_is_a_case_path() {
-        let d = decode("#v1").unwrap();
+        // With the optional groups present, so that their keys are in the tree too.
+        let d = decode("#v1;rig=1;0.rig=1").unwrap();
         let tree = serde_json::to_value(&d.case).unwrap();
         for (i, a) in KEYS.iter().enumerate() {
             for b in &KEYS[i + 1..] {
