@@ -435,8 +435,9 @@ pub struct Load {
     pub hydrodynamic_peak: f64,
     /// N or N m. Largest body-inertia load, moving mass (or inertia) times peak acceleration.
     pub inertia_peak: f64,
-    /// N or N m. Classical flat-plate added mass (or inertia) times peak acceleration: the share
-    /// of the hydrodynamic load that is apparent mass (already inside `hydrodynamic_peak`).
+    /// N or N m. Classical flat-plate added mass (or added inertia) times the peak acceleration:
+    /// the apparent-mass load of this motion alone. It is already inside `hydrodynamic_peak`,
+    /// where other terms (those of the pitch rate in a feathering motion) can cancel part of it.
     pub added_mass_peak: f64,
 }
 
@@ -1253,7 +1254,7 @@ fn load_report(
         ((1.5, 2.0), "known peak loads, ductile metal")
     };
     let cp = "common practice";
-    let sizing = vec![
+    let mut sizing = vec![
         Sizing {
             item: "heave actuator peak force rating",
             value: 1.5 * heave_force.peak,
@@ -1312,6 +1313,10 @@ fn load_report(
             source: cp,
         },
     ];
+    if f == 0.0 {
+        // A start from rest has no flapping frequency to keep the mount's resonance above.
+        sizing.retain(|s| s.unit != "Hz");
+    }
     let mut notes = Vec::new();
     if m == 0.0 {
         notes.push(format!(
@@ -1425,7 +1430,7 @@ impl RigCheck {
             ] {
                 let _ = writeln!(
                     o,
-                    "  {name:<12} peak {} {unit}, RMS {} {unit} (hydrodynamic peak {}, of which flat-plate added mass about {}; body inertia {})",
+                    "  {name:<12} peak {} {unit}, RMS {} {unit} (hydrodynamic peak {}, inside it flat-plate added mass x peak acceleration {}; body inertia {})",
                     short(load.peak),
                     short(load.rms),
                     short(load.hydrodynamic_peak),
