@@ -38,13 +38,43 @@ pub const TREE_THETA: f64 = 0.5;
 /// discretisation error, which the validation tests put near 1e-2).
 pub const TREE_TOLERANCE: f64 = 1e-6;
 
-/// Far-field multipole expansion of one foil's singularities.
+/// Panels per group in the foils' two-level far-field expansions.
+const GROUP_PANELS: usize = 16;
+
+/// Multipole expansion of some of a foil's singularities (panels `range`).
 #[derive(Debug, Clone)]
-struct BodyExpansion {
+struct Expansion {
     centre: [f64; 2],
     radius: f64,
     core: f64,
     moments: Vec<Complex<f64>>,
+    range: (usize, usize),
+}
+
+impl Expansion {
+    /// m/s. Velocity at `p` from the expansion, when `p` is far enough for it.
+    fn far_velocity(&self, p: [f64; 2]) -> Option<[f64; 2]> {
+        let dz = Complex::new(p[0] - self.centre[0], p[1] - self.centre[1]);
+        let d = (dz.re * dz.re + dz.im * dz.im).sqrt();
+        if self.radius < TREE_THETA * d && d - self.radius > 6.0 * self.core {
+            let t = Complex::new(1.0, 0.0) / dz;
+            let mut acc = Complex::new(0.0, 0.0);
+            for mm in self.moments.iter().rev() {
+                acc = acc * t + mm;
+            }
+            let w = acc * t;
+            Some([w.re, -w.im])
+        } else {
+            None
+        }
+    }
+}
+
+/// A foil's expansions: the whole foil, and its panel groups.
+#[derive(Debug, Clone)]
+struct BodyExpansion {
+    whole: Expansion,
+    groups: Vec<Expansion>,
 }
 
 /// Loads and pose of one foil at one instant.
@@ -576,8 +606,17 @@ impl Simulation {
             let um: Vec<[f64; 2]> = b
                 .mids
                 .iter()
-                .map(|&p| free_flow(p, &self.wake, self.delta_sq).0)
-                .collect(); // psi unused at mids
+                .map(|&p| {
+                    let mut u = tree.velocity(p);
+                    for &i in &chained {
+                        let c = [self.wake.x[i], self.wake.y[i]];
+                        let v = fast::gaussian_velocity(c, self.wake.gamma[i], self.delta_sq, p);
+                        u[0] -= v[0];
+                        u[1] -= v[1];
+                    }
+                    u
+                })
+                .collect();
             let mut phi = vec![0.0; npan];
             let mut acc = 0.0;
             for j in 0..npan {
@@ -921,9 +960,14 @@ impl Simulation {
     /// wake core: the scale on which the discrete sheet stands for the continuous one) and its
     /// source panels (exact panel formula).
     fn body_velocity_direct(&self, b: &Body, p: [f64; 2]) -> [f64; 2] {
-        let n = b.panels();
+        self.panels_velocity_direct(b, 0, b.panels(), p)
+    }
+
+    /// m/s. Direct velocity of panels `k0..k1` of foil `b` and of the nodal vortices at their
+    /// starts (node 0, the trailing edge, carries none).
+    fn panels_velocity_direct(&self, b: &Body, k0: usize, k1: usize, p: [f64; 2]) -> [f64; 2] {
         let mut u = [0.0; 2];
-        for k in 1..n {
+        for k in k0.max(1)..k1 {
             let g = b.mu[k - 1] - b.mu[k];
             let core = b.lengths[k - 1].max(b.lengths[k]);
             let d2 = (core * core).min(self.delta_sq);
@@ -931,7 +975,7 @@ impl Simulation {
             u[0] += v[0];
             u[1] += v[1];
         }
-        for k in 0..n {
+        for k in k0..k1 {
             let v = kernels::source_velocity(b.nodes[k], b.nodes[k + 1], p);
             u[0] += v[0] * b.sigma[k];
             u[1] += v[1] * b.sigma[k];
@@ -939,26 +983,37 @@ impl Simulation {
         u
     }
 
-    /// Multipole expansion of foil `b`'s singularities about its centre, with the exact moments
-    /// of each source panel (`integral of (z - c)^n ds`).
+    /// Multipole expansions of foil `b`'s singularities: one for the whole foil and one for
+    /// each group of [`GROUP_PANELS`] panels, with the exact moments of each source panel
+    /// (`integral of (z - c)^n ds`).
     fn body_expansion(&self, b: &Body) -> BodyExpansion {
         let n = b.panels();
+        let whole = self.panel_expansion(b, 0, n);
+        let groups = (0..n)
+            .step_by(GROUP_PANELS)
+            .map(|k0| self.panel_expansion(b, k0, (k0 + GROUP_PANELS).min(n)))
+            .collect();
+        BodyExpansion { whole, groups }
+    }
+
+    /// Expansion of panels `k0..k1` of foil `b` (their sources and the nodal vortices at the
+    /// start of each, node 0 excluded).
+    fn panel_expansion(&self, b: &Body, k0: usize, k1: usize) -> Expansion {
         let order = ((TREE_TOLERANCE.ln() / TREE_THETA.ln()).ceil() as usize).max(1);
         let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
-        for p in &b.nodes {
+        for p in &b.nodes[k0..=k1] {
             lo = [lo[0].min(p[0]), lo[1].min(p[1])];
             hi = [hi[0].max(p[0]), hi[1].max(p[1])];
         }
         let c = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
-        let radius = b
-            .nodes
+        let radius = b.nodes[k0..=k1]
             .iter()
             .map(|p| ((p[0] - c[0]).powi(2) + (p[1] - c[1]).powi(2)).sqrt())
             .fold(0.0, f64::max);
         let cc = Complex::new(c[0], c[1]);
         let mut m = vec![Complex::new(0.0, 0.0); order + 1];
         let mut core: f64 = 0.0;
-        for k in 1..n {
+        for k in k0.max(1)..k1 {
             let s = Complex::new(0.0, -(b.mu[k - 1] - b.mu[k]) / (2.0 * PI));
             let xi = Complex::new(b.nodes[k][0], b.nodes[k][1]) - cc;
             let mut pw = s;
@@ -968,7 +1023,7 @@ impl Simulation {
             }
             core = core.max(b.lengths[k - 1].max(b.lengths[k]));
         }
-        for k in 0..n {
+        for k in k0..k1 {
             let za = Complex::new(b.nodes[k][0], b.nodes[k][1]) - cc;
             let zb = Complex::new(b.nodes[k + 1][0], b.nodes[k + 1][1]) - cc;
             let e = Complex::new(b.tangents[k][0], b.tangents[k][1]);
@@ -980,29 +1035,31 @@ impl Simulation {
                 pb *= zb;
             }
         }
-        BodyExpansion {
+        Expansion {
             centre: c,
             radius,
             core: core.min(self.delta_sq.sqrt()),
             moments: m,
+            range: (k0, k1),
         }
     }
 
-    /// m/s. Velocity of foil `b` at `p`: its expansion far away, direct sums near it.
+    /// m/s. Velocity of foil `b` at `p`: the whole foil's expansion far away; near it, each
+    /// panel group's expansion or, next to the group, its direct sum.
     fn body_velocity(&self, b: &Body, e: &BodyExpansion, p: [f64; 2]) -> [f64; 2] {
-        let dz = Complex::new(p[0] - e.centre[0], p[1] - e.centre[1]);
-        let d = (dz.re * dz.re + dz.im * dz.im).sqrt();
-        if e.radius < TREE_THETA * d && d - e.radius > 6.0 * e.core {
-            let t = Complex::new(1.0, 0.0) / dz;
-            let mut acc = Complex::new(0.0, 0.0);
-            for mm in e.moments.iter().rev() {
-                acc = acc * t + mm;
-            }
-            let w = acc * t;
-            [w.re, -w.im]
-        } else {
-            self.body_velocity_direct(b, p)
+        if let Some(v) = e.whole.far_velocity(p) {
+            return v;
         }
+        let mut u = [0.0; 2];
+        for g in &e.groups {
+            let v = match g.far_velocity(p) {
+                Some(v) => v,
+                None => self.panels_velocity_direct(b, g.range.0, g.range.1, p),
+            };
+            u[0] += v[0];
+            u[1] += v[1];
+        }
+        u
     }
 
     /// Moves the wake to the next instant (Adams-Bashforth 2; Euler for a new particle) and puts
