@@ -12,6 +12,7 @@ import { Notices } from "./ui/notices.js";
 import { CaseFiles } from "./ui/files.js";
 import { ShareLink } from "./ui/share.js";
 import { Exports } from "./ui/exports.js";
+import { MapView } from "./ui/map.js";
 
 const $ = (id) => document.getElementById(id);
 const PLOT_COLOURS = ["#0f6f75", "#b3404a", "#8a7a1f", "#5b4fb0", "#3f8f3f", "#b36b1f", "#9c3f8a", "#4f7fa6"];
@@ -74,6 +75,9 @@ const files = new CaseFiles({
 });
 const share = new ShareLink({ state, files, notices, root: $("share-export") });
 new Exports({ client: main, state, root: $("share-export"), wakeCanvas: $("wake"), plotCanvases: ["plot-thrust", "plot-lift", "plot-power"].map($) });
+// Spacing-phase maps (ui/map.js): start from the live view's case; a clicked cell opens in it.
+const mapView = new MapView({ root: $("map-view"), notices, getCase: () => (state.values ? state.candidate() : null), loadCase: (c, label) => files.replaceCase(c, label) });
+share.extraFragment = () => mapView.fragment();
 
 if ("serviceWorker" in navigator) {
   // Offline use once loaded; the page works the same without it.

@@ -16,6 +16,8 @@ export class ShareLink {
     this.files = files;
     this.notices = notices;
     this.opened = null; // the fragment the page opened or wrote last
+    // Further parts after the case (`&map=...`, owned by ui/map.js); "" for none.
+    this.extraFragment = () => "";
 
     const row = document.createElement("div");
     row.className = "share-row";
@@ -48,16 +50,16 @@ export class ShareLink {
   /** The case in the page's address, or null if it has none (or none that opens). Call once,
    * before the first case loads; it shows a notice for anything it could not use. */
   async linkedCase() {
-    if (location.hash.length <= 1) return null;
+    if (casePart(location.hash).length <= 1) return null;
     return this.decode(await pageCodec(), location.hash);
   }
 
   /** Decodes `text` and shows what was ignored; null if it is not a link at all. */
   decode(codec, text) {
-    this.opened = text.replace(/^#/, "");
+    this.opened = casePart(text).replace(/^#/, "");
     let d;
     try {
-      d = codec.linkToCase(text);
+      d = codec.linkToCase(casePart(text));
     } catch (e) {
       if (e?.name !== "LinkError") throw e;
       this.notices.show("link", {
@@ -86,7 +88,8 @@ export class ShareLink {
 
   /** A link pasted into the address bar of the open page (the page does not reload). */
   async openFromAddress() {
-    if (location.hash.length <= 1 || location.hash.slice(1) === this.opened) return;
+    const hash = casePart(location.hash);
+    if (hash.length <= 1 || hash.slice(1) === this.opened) return;
     const c = this.decode(await pageCodec(), location.hash);
     if (c) this.files.replaceCase(c, "the case from the link");
   }
@@ -97,6 +100,9 @@ export class ShareLink {
     let fragment;
     try {
       fragment = codec.caseToLink(JSON.stringify(this.state.candidate()));
+      this.opened = fragment;
+      const extra = this.extraFragment();
+      if (extra) fragment += `&${extra}`;
     } catch (e) {
       if (e?.name !== "CaseError" && e?.name !== "LinkError") throw e;
       this.field.value = "";
@@ -105,7 +111,6 @@ export class ShareLink {
     }
     const url = `${location.href.split("#")[0]}#${fragment}`;
     this.field.value = url;
-    this.opened = fragment;
     history.replaceState(null, "", `#${fragment}`);
     try {
       await navigator.clipboard.writeText(url);
@@ -115,4 +120,10 @@ export class ShareLink {
       this.field.focus();
     }
   }
+}
+
+/** The case part of a fragment: everything before a `&map=` part (ui/map.js reads that one). */
+function casePart(text) {
+  const m = /(^#?|&)map=/.exec(text);
+  return m ? text.slice(0, m.index) : text;
 }
