@@ -14,6 +14,7 @@
 //! relative, so with the opening ratio `theta` the order is `p = ln(tol) / ln(theta)`.
 //! Data is stored as structures of arrays so the direct loops vectorise.
 
+use crate::detmath::DetMath;
 use nalgebra::Complex;
 use std::f64::consts::PI;
 
@@ -30,7 +31,7 @@ const EULER_GAMMA: f64 = 0.577_215_664_901_532_9;
 /// Abramowitz & Stegun 1964, 5.1.11 and 5.1.22), to about 1e-15 relative.
 pub fn exp_integral_e1(x: f64) -> f64 {
     if x <= 1.0 {
-        -EULER_GAMMA - x.ln() + e1_series_tail(x)
+        -EULER_GAMMA - x.dln() + e1_series_tail(x)
     } else if x > 700.0 {
         0.0
     } else {
@@ -51,7 +52,7 @@ pub fn exp_integral_e1(x: f64) -> f64 {
                 break;
             }
         }
-        h * (-x).exp()
+        h * (-x).dexp()
     }
 }
 
@@ -81,7 +82,7 @@ pub fn gaussian_velocity(c: [f64; 2], gamma: f64, delta_sq: f64, p: [f64; 2]) ->
         return [0.0, 0.0];
     }
     let shield = if delta_sq > 0.0 {
-        1.0 - (-r2 / delta_sq).exp()
+        1.0 - (-r2 / delta_sq).dexp()
     } else {
         1.0
     };
@@ -98,14 +99,14 @@ pub fn gaussian_stream_function(c: [f64; 2], gamma: f64, delta_sq: f64, p: [f64;
     let r2 = dx * dx + dy * dy;
     let k = -gamma / (4.0 * PI);
     if delta_sq <= 0.0 {
-        return k * r2.ln();
+        return k * r2.dln();
     }
     let x = r2 / delta_sq;
     if x <= 1.0 {
         // ln r^2 + E1(x) = ln delta^2 - gamma_E + tail(x): no cancellation near the centre.
-        k * (delta_sq.ln() - EULER_GAMMA + e1_series_tail(x))
+        k * (delta_sq.dln() - EULER_GAMMA + e1_series_tail(x))
     } else {
-        k * (r2.ln() + exp_integral_e1(x))
+        k * (r2.dln() + exp_integral_e1(x))
     }
 }
 
@@ -183,7 +184,7 @@ fn direct_range<const PSI: bool>(
         if r2 > 0.0 {
             // exp(-36) is below round-off: skip the exponential outside six cores.
             let shield = if d2 > 0.0 && r2 < 36.0 * d2 {
-                1.0 - (-r2 / d2).exp()
+                1.0 - (-r2 / d2).dexp()
             } else {
                 1.0
             };
@@ -231,7 +232,7 @@ impl Tree {
     /// 0.2 to 0.8) and relative tolerance `tolerance` of the far-field expansions.
     pub fn new(elements: &Elements, theta: f64, tolerance: f64) -> Tree {
         let n = elements.len();
-        let order = ((tolerance.ln() / theta.ln()).ceil().max(1.0) as usize).min(60);
+        let order = ((tolerance.dln() / theta.dln()).ceil().max(1.0) as usize).min(60);
         let mut idx: Vec<usize> = (0..n).collect();
         let mut cells = Vec::with_capacity(2 * n / LEAF + 2);
         if n > 0 {
@@ -352,7 +353,11 @@ impl Tree {
                     for m in (1..self.order).rev() {
                         pacc = pacc * t + self.moments[base + m] / m as f64;
                     }
-                    let f = self.moments[base] * dz.ln() - pacc * t;
+                    let log_dz = C64::new(
+                        0.5 * (dz.re * dz.re + dz.im * dz.im).dln(),
+                        dz.im.datan2(dz.re),
+                    );
+                    let f = self.moments[base] * log_dz - pacc * t;
                     psi += f.im;
                 }
             } else if let Some((a, b)) = cell.children {

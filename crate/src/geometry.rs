@@ -4,6 +4,7 @@
 //! edge at (1, 0). Node 0 and node N are both the trailing edge; nodes run clockwise: along the
 //! lower surface to the leading edge, then back along the upper surface (see [`crate::conventions`]).
 
+use crate::detmath::DetMath;
 use std::f64::consts::PI;
 
 /// Nodes of a symmetric 4-digit section of maximum thickness `thickness` (fraction of chord) with a
@@ -24,11 +25,11 @@ pub fn symmetric_section(thickness: f64, panels: usize) -> Vec<[f64; 2]> {
     };
     let mut nodes = Vec::with_capacity(panels + 1);
     for i in 0..=half {
-        let x = 0.5 * (1.0 + (PI * i as f64 / half as f64).cos());
+        let x = 0.5 * (1.0 + (PI * i as f64 / half as f64).dcos());
         nodes.push([x, -yt(x)]);
     }
     for i in 1..=half {
-        let x = 0.5 * (1.0 - (PI * i as f64 / half as f64).cos());
+        let x = 0.5 * (1.0 - (PI * i as f64 / half as f64).dcos());
         nodes.push([x, yt(x)]);
     }
     // Exact closure: the TE is one point.

@@ -4,6 +4,7 @@
 //! `a` to `b`; its local frame has x along `b - a` and y to the left of it (the outward normal for
 //! the clockwise node order used on foils, see [`crate::conventions`]).
 
+use crate::detmath::DetMath;
 use std::f64::consts::PI;
 
 const INV_2PI: f64 = 0.5 / PI;
@@ -16,7 +17,7 @@ pub fn subtended_angle(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> f64 {
     let r2 = [p[0] - b[0], p[1] - b[1]];
     let cross = r1[0] * r2[1] - r1[1] * r2[0];
     let dot = r1[0] * r2[0] + r1[1] * r2[1];
-    cross.atan2(dot)
+    cross.datan2(dot)
 }
 
 /// Potential at `p` of a constant-strength doublet panel of unit strength from `a` to `b`:
@@ -45,10 +46,10 @@ pub fn source_potential(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> f64 {
     let r2sq = (x - l) * (x - l) + y * y;
     let mut acc = -2.0 * l;
     if r1sq > 0.0 {
-        acc += x * r1sq.ln();
+        acc += x * r1sq.dln();
     }
     if r2sq > 0.0 {
-        acc -= (x - l) * r2sq.ln();
+        acc -= (x - l) * r2sq.dln();
     }
     if y != 0.0 {
         acc += 2.0 * y * subtended_angle(a, b, p);
@@ -59,7 +60,7 @@ pub fn source_potential(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> f64 {
 /// Potential of a unit source panel at its own midpoint: `(l / 2 pi) (ln(l / 2) - 1)`.
 #[inline]
 pub fn source_self_potential(l: f64) -> f64 {
-    l * INV_2PI * ((0.5 * l).ln() - 1.0)
+    l * INV_2PI * ((0.5 * l).dln() - 1.0)
 }
 
 /// Velocity at `p` induced by a constant-strength source panel of unit strength from `a` to `b`
@@ -72,7 +73,7 @@ pub fn source_velocity(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> [f64; 2] {
     let t = [dx / l, dy / l];
     let r1sq = (p[0] - a[0]).powi(2) + (p[1] - a[1]).powi(2);
     let r2sq = (p[0] - b[0]).powi(2) + (p[1] - b[1]).powi(2);
-    let ul = 0.25 / PI * (r1sq / r2sq).ln();
+    let ul = 0.25 / PI * (r1sq / r2sq).dln();
     let vl = INV_2PI * subtended_angle(a, b, p);
     [ul * t[0] - vl * t[1], ul * t[1] + vl * t[0]]
 }
@@ -106,7 +107,7 @@ pub fn blob_velocity(c: [f64; 2], gamma: f64, delta_sq: f64, p: [f64; 2]) -> [f6
 pub fn blob_stream_function(c: [f64; 2], gamma: f64, delta_sq: f64, p: [f64; 2]) -> f64 {
     let dx = p[0] - c[0];
     let dy = p[1] - c[1];
-    -gamma * 0.25 / PI * (dx * dx + dy * dy + delta_sq).ln()
+    -gamma * 0.25 / PI * (dx * dx + dy * dy + delta_sq).dln()
 }
 
 #[cfg(test)]

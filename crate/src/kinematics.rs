@@ -5,6 +5,7 @@
 //! the smooth-start ramp (`0.5 (1 - cos(pi t / T_ramp))` for `t < T_ramp`, then 1). With frequency
 //! 0 the foil stays at its mean pose (an impulsive start from rest, as in Wagner's problem).
 
+use crate::detmath::DetMath;
 use std::f64::consts::PI;
 
 use crate::case::Foil;
@@ -27,7 +28,7 @@ impl Pose {
     /// (`xi` along the chord towards the TE, `eta` towards the upper surface).
     #[inline]
     pub fn to_world(&self, body: [f64; 2], chord: f64, pivot_fraction: f64) -> [f64; 2] {
-        let (s, c) = self.theta.sin_cos();
+        let (s, c) = self.theta.dsin_cos();
         let rx = chord * (body[0] - pivot_fraction);
         let ry = chord * body[1];
         // Nose-up pitch is a clockwise rotation by theta.
@@ -52,7 +53,7 @@ impl Pose {
     /// Unit vector along the chord from the leading edge to the trailing edge.
     #[inline]
     pub fn chord_direction(&self) -> [f64; 2] {
-        let (s, c) = self.theta.sin_cos();
+        let (s, c) = self.theta.dsin_cos();
         [c, -s]
     }
 }
@@ -83,8 +84,8 @@ impl Motion {
     pub fn new(foil: &Foil, frequency: f64, ramp_time: f64) -> Motion {
         let pitch_mean = foil.pitch_mean.to_radians();
         let pivot_mean = [
-            foil.x + foil.chord * foil.pivot * pitch_mean.cos(),
-            foil.y - foil.chord * foil.pivot * pitch_mean.sin(),
+            foil.x + foil.chord * foil.pivot * pitch_mean.dcos(),
+            foil.y - foil.chord * foil.pivot * pitch_mean.dsin(),
         ];
         let oscillating = frequency > 0.0;
         Motion {
@@ -118,7 +119,7 @@ impl Motion {
             (0.0, 0.0)
         } else {
             let a = PI / self.ramp_time;
-            (0.5 * (1.0 - (a * t).cos()), 0.5 * a * (a * t).sin())
+            (0.5 * (1.0 - (a * t).dcos()), 0.5 * a * (a * t).dsin())
         }
     }
 
@@ -126,8 +127,8 @@ impl Motion {
     pub fn pose(&self, t: f64) -> Pose {
         let (r, rdot) = self.ramp(t);
         let ph = self.omega * t - self.phase;
-        let (sh, ch) = ph.sin_cos();
-        let (sp, cp) = (ph + self.pitch_lead).sin_cos();
+        let (sh, ch) = ph.dsin_cos();
+        let (sp, cp) = (ph + self.pitch_lead).dsin_cos();
         let y = self.heave * r * sh;
         let ydot = self.heave * (rdot * sh + r * self.omega * ch);
         let theta = self.pitch_mean + self.pitch * r * sp;
@@ -143,7 +144,7 @@ impl Motion {
     /// rad. Effective angle of attack at the pivot, `theta - atan(ydot / U)`.
     pub fn angle_of_attack(&self, t: f64, speed: f64) -> f64 {
         let p = self.pose(t);
-        p.theta - (p.pivot_velocity[1] / speed).atan()
+        p.theta - (p.pivot_velocity[1] / speed).datan()
     }
 }
 
@@ -237,7 +238,7 @@ mod tests {
         f.pitch = 20.0;
         let m = Motion::new(&f, 1.0, 0.0);
         let a = max_angle_of_attack(&m, 0.5).to_degrees();
-        let expect = (2.0 * PI * 0.075 / 0.5_f64).atan().to_degrees() - 20.0;
+        let expect = (2.0 * PI * 0.075 / 0.5_f64).datan().to_degrees() - 20.0;
         assert!((a - expect).abs() < 0.05, "{a} vs {expect}");
     }
 }

@@ -25,6 +25,7 @@
 
 pub mod case;
 pub mod conventions;
+pub mod detmath;
 pub mod error;
 pub mod export;
 pub mod fast;

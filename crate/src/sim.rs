@@ -10,6 +10,7 @@
 //! second-order Adams-Bashforth scheme. Pressures come from the unsteady Bernoulli equation with
 //! the surface potential differentiated in time by second-order backward differences.
 
+use crate::detmath::DetMath;
 use nalgebra::{Complex, DMatrix, DVector};
 use std::f64::consts::PI;
 
@@ -790,7 +791,7 @@ impl Simulation {
                                 let nn = q.normals[k];
                                 (
                                     l / (2.0 * PI) * (r[0] * nn[0] + r[1] * nn[1]) / r2,
-                                    l / (4.0 * PI) * r2.ln(),
+                                    l / (4.0 * PI) * r2.dln(),
                                 )
                             } else {
                                 (
@@ -999,7 +1000,7 @@ impl Simulation {
     /// Expansion of panels `k0..k1` of foil `b` (their sources and the nodal vortices at the
     /// start of each, node 0 excluded).
     fn panel_expansion(&self, b: &Body, k0: usize, k1: usize) -> Expansion {
-        let order = ((TREE_TOLERANCE.ln() / TREE_THETA.ln()).ceil() as usize).max(1);
+        let order = ((TREE_TOLERANCE.dln() / TREE_THETA.dln()).ceil() as usize).max(1);
         let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
         for p in &b.nodes[k0..=k1] {
             lo = [lo[0].min(p[0]), lo[1].min(p[1])];
@@ -1246,7 +1247,7 @@ pub fn steady_solution(nodes: &[[f64; 2]], chord: f64, alpha: f64) -> SteadySolu
     // Nodes are given in metres; a chord of 1 with the pivot at 0 keeps them as they are.
     let mut b = new_body_from_section(nodes.to_vec(), 1.0, 1.0, 0.0, motion);
     let n = b.panels();
-    let u_inf = [alpha.cos(), alpha.sin()];
+    let u_inf = [alpha.dcos(), alpha.dsin()];
     for j in 0..n {
         b.sigma[j] = -(b.normals[j][0] * u_inf[0] + b.normals[j][1] * u_inf[1]);
     }

@@ -1,5 +1,6 @@
 //! Cycle statistics and the summary whose JSON keys are the contract with the page and scripts.
 
+use crate::detmath::DetMath;
 use serde::Serialize;
 
 /// Per-foil cycle statistics. Coefficients use each foil's own chord and span with the free-stream
@@ -143,8 +144,8 @@ pub(crate) fn summarise(sim: &crate::sim::Simulation) -> Summary {
         if oscillating && hi > lo {
             for (k, r) in hist[lo..hi].iter().enumerate() {
                 let t = (lo + k) as f64 * dt;
-                a += r[i].lift_coefficient * (omega * t).sin();
-                b += r[i].lift_coefficient * (omega * t).cos();
+                a += r[i].lift_coefficient * (omega * t).dsin();
+                b += r[i].lift_coefficient * (omega * t).dcos();
             }
             a *= 2.0 / (hi - lo) as f64;
             b *= 2.0 / (hi - lo) as f64;
@@ -178,7 +179,7 @@ pub(crate) fn summarise(sim: &crate::sim::Simulation) -> Summary {
             thrust_coefficient: ct,
             lift_coefficient: cl,
             lift_amplitude: (a * a + b * b).sqrt(),
-            lift_phase: b.atan2(a).to_degrees(),
+            lift_phase: b.datan2(a).to_degrees(),
             moment_coefficient: cm,
             power_coefficient: cpw,
             efficiency: if ct > 0.0 && cpw > 0.0 {

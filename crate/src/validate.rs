@@ -48,6 +48,7 @@
 //! Every number must be finite. Geometry overlap between foils is checked by
 //! [`crate::Simulation::new`], which owns the section geometry.
 
+use crate::detmath::DetMath;
 use serde_json::Value;
 
 use crate::case::{Case, CASE_VERSION, MAX_FOILS};
@@ -691,7 +692,7 @@ fn round_sig(v: f64) -> f64 {
     if v == 0.0 || !v.is_finite() {
         return v;
     }
-    let scale = 10f64.powi(5 - v.abs().log10().floor() as i32);
+    let scale = 10f64.powi(5 - v.abs().dlog10().floor() as i32);
     (v * scale).round() / scale
 }
 

@@ -12,6 +12,7 @@
 //! 0.25 Pa in vapour pressure (measured by the water fixture test in `tests/case`). Outside
 //! [`TEMPERATURE_RANGE`] the formulas are extrapolated; case validation rejects such temperatures.
 
+use crate::detmath::DetMath;
 use serde::{Deserialize, Serialize};
 
 /// Kind of water.
@@ -95,7 +96,7 @@ pub fn sea_density(t: f64) -> f64 {
     let b = 8.244_93e-1 + t * (-4.089_9e-3 + t * (7.643_8e-5 + t * (-8.246_7e-7 + t * 5.387_5e-9)));
     let c = -5.724_66e-3 + t * (1.022_7e-4 - t * 1.654_6e-6);
     let d = 4.831_4e-4;
-    rho_w + b * s + c * s.powf(1.5) + d * s * s
+    rho_w + b * s + c * s.dpowf(1.5) + d * s * s
 }
 
 /// Pa s. Dynamic viscosity of pure water at atmospheric pressure.
@@ -105,7 +106,7 @@ pub fn sea_density(t: f64) -> f64 {
 pub fn fresh_viscosity(t: f64) -> f64 {
     const MU_20: f64 = 1.002e-3; // Pa s at 20 deg C
     let exponent = (1.1709 * (20.0 - t) - 1.827e-3 * (t - 20.0).powi(2)) / (t + 89.93);
-    MU_20 * 10f64.powf(exponent)
+    MU_20 * 10f64.dpowf(exponent)
 }
 
 /// Pa s. Dynamic viscosity of standard seawater at atmospheric pressure.
@@ -140,10 +141,10 @@ pub fn vapour_pressure(t: f64) -> f64 {
     let temp = t + 273.15;
     let tau = 1.0 - temp / T_C;
     let sum = A[0] * tau
-        + A[1] * tau.powf(1.5)
+        + A[1] * tau.dpowf(1.5)
         + A[2] * tau.powi(3)
-        + A[3] * tau.powf(3.5)
+        + A[3] * tau.dpowf(3.5)
         + A[4] * tau.powi(4)
-        + A[5] * tau.powf(7.5);
-    P_C * (T_C / temp * sum).exp()
+        + A[5] * tau.dpowf(7.5);
+    P_C * (T_C / temp * sum).dexp()
 }

@@ -94,9 +94,20 @@ fn numerics_may_be_left_out() {
 }
 
 #[test]
+fn start_from_rest_rejects_amplitudes() {
+    // A start from rest holds the foil at its mean pose: an amplitude would be ignored, so it is
+    // an error that says so rather than a silent change.
+    let mut case = from_rest();
+    set(&mut case, "/foils/0/heave", json!(0.05));
+    expect_error(&case, "foils.0.heave", &["0.05", "when frequency is 0"]);
+    let mut case = from_rest();
+    set(&mut case, "/foils/0/pitch", json!(5.0));
+    expect_error(&case, "foils.0.pitch", &["5", "when frequency is 0"]);
+}
+
+#[test]
 fn start_from_rest_accepts_time_step_and_duration() {
-    let mut case = base();
-    set(&mut case, "/frequency", json!(0.0));
+    let mut case = from_rest();
     set(&mut case, "/numerics/time_step", json!(0.004));
     set(&mut case, "/numerics/duration", json!(4.0));
     let c = accept(&case);
@@ -115,7 +126,11 @@ fn bounds_are_inclusive() {
         vec![("/flow/temperature", json!(0.0))],
         vec![("/flow/temperature", json!(40.0))],
         vec![("/frequency", json!(100.0))],
-        vec![("/frequency", json!(0.0))],
+        vec![
+            ("/frequency", json!(0.0)),
+            ("/foils/0/heave", json!(0.0)),
+            ("/foils/0/pitch", json!(0.0)),
+        ],
         vec![
             ("/foils/0/chord", json!(0.001)),
             ("/foils/0/heave", json!(0.005)),
@@ -494,6 +509,8 @@ fn non_finite_numbers_are_rejected() {
 
     let mut c = base;
     c.frequency = 0.0;
+    c.foils[0].heave = 0.0;
+    c.foils[0].pitch = 0.0;
     c.numerics.time_step = Some(f64::NAN);
     let e = c.validate().unwrap_err();
     check_error(&e, "numerics.time_step", &["= NaN", "a finite number"]);
@@ -654,9 +671,13 @@ fn time_step_only_for_start_from_rest() {
     accept(&case);
 }
 
+/// The base case started from rest: frequency 0 and no heave or pitch amplitude (a start from
+/// rest holds the foil at its mean pose, so amplitudes are rejected there).
 fn from_rest() -> Value {
     let mut case = base();
     set(&mut case, "/frequency", json!(0.0));
+    set(&mut case, "/foils/0/heave", json!(0.0));
+    set(&mut case, "/foils/0/pitch", json!(0.0));
     case
 }
 

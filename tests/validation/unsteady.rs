@@ -274,7 +274,12 @@ fn coarsening_the_far_wake_leaves_mean_forces_unchanged() {
     let mut capped = tandem();
     capped.numerics.max_particles = 600;
     let (a, b) = (run(&free), run(&capped));
-    assert!(b.particles <= 600 && a.particles > 600, "{} {}", a.particles, b.particles);
+    assert!(
+        b.particles <= 600 && a.particles > 600,
+        "{} {}",
+        a.particles,
+        b.particles
+    );
     for i in 0..2 {
         let (ta, tb) = (a.foils[i].thrust, b.foils[i].thrust);
         let (pa, pb) = (a.foils[i].power, b.foils[i].power);
