@@ -17,6 +17,9 @@
 //!   phase). `foils=N` gives the number of foils; without it the link has one more foil than
 //!   its highest foil index. These defaults belong to the link format of version 1 and never
 //!   change, even if the case file's defaults do: a link keeps meaning what it meant.
+//! * **Page parts.** The page may follow the case with `&name=value` parts of its own (the
+//!   spacing-phase map's settings, `&map=...`); the case ends at the first `&`, and the case
+//!   decoder ignores what follows.
 //! * **Versions.** A later finwake keeps reading `v1` links. A change that would give an old link
 //!   another meaning needs a new version number and a reader for the old one.
 //!
@@ -686,6 +689,8 @@ pub fn decode(link: &str) -> Result<Decoded, LinkError> {
         Some(i) => &text[i + 1..],
         None => text,
     };
+    // Page parts (`&map=...`) follow the case; they are the page's, not the case's.
+    let fragment = fragment.split('&').next().unwrap_or_default();
     if fragment.is_empty() {
         return Err(LinkError::new(
             "the link holds no case: a finwake case link ends in #v1;... (copy it again with the page's Copy link)",
