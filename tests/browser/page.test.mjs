@@ -231,7 +231,7 @@ test("it keeps working offline once loaded, and no request leaves the page's ori
     await page.fill('[name="numerics.cycles"]', "2");
     await runToEnd(page);
     assert.notEqual((await readout(page, "foils.1.thrust")).text, "—");
-    await page.selectOption("#preset", { index: 1 });
+    await page.selectOption("#preset", { label: "single efficient" }); // a one-foil example
     await page.waitForFunction(() => document.querySelectorAll('[name^="foils.1."]').length === 0);
     // Reload with the network still off: the service worker serves the cached build.
     await page.reload();
