@@ -5,7 +5,7 @@
 import { test, before, after } from "node:test";
 import assert from "node:assert/strict";
 import { execFileSync } from "node:child_process";
-import { mkdtempSync, writeFileSync } from "node:fs";
+import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
@@ -114,6 +114,16 @@ test("a 3 x 2 map completes and draws, hover shows a cell, a click loads it into
     });
     assert.ok(colours > 20, `the map canvas shows only ${colours} colours`);
     await page.locator("#map-canvas").screenshot({ path: join(ARTIFACTS, "map.png") });
+    // Exports: a CSV with one row per cell, and a PNG file.
+    const [csv] = await Promise.all([page.waitForEvent("download"), page.click("#map-csv")]);
+    assert.equal(csv.suggestedFilename(), "finwake-map.csv");
+    const rows = readFileSync(await csv.path(), "utf8").trim().split("\n").filter((l) => !l.startsWith("#"));
+    assert.equal(rows[0].split(",").slice(0, 3).join(","), "index,foils.1.x,foils.1.phase");
+    assert.equal(rows.length, 7, rows.join("\n"));
+    assert.equal(rows[6].split(",").slice(0, 3).join(","), "5,2,180");
+    const [png] = await Promise.all([page.waitForEvent("download"), page.click("#map-png")]);
+    assert.equal(png.suggestedFilename(), "finwake-map.png");
+    assert.deepEqual([...readFileSync(await png.path()).subarray(1, 4)], [0x50, 0x4e, 0x47], "not a PNG file");
 
     // Hover the cell gap 2 c, phase 180 deg (i = 2, j = 1).
     const p = await cellPoint(page, 2, 1, 3, 2);
@@ -125,6 +135,11 @@ test("a 3 x 2 map completes and draws, hover shows a cell, a click loads it into
     const hover = { total: await value("total.thrust"), hind: await value("foils.1.thrust"), ratio: await value("foils.1.thrust_ratio") };
     assert.ok(Number.isFinite(hover.total) && Number.isFinite(hover.hind) && Number.isFinite(hover.ratio), JSON.stringify(hover));
 
+    // The keyboard reaches the cells too: one cell left of the hovered one is gap 1.5 c.
+    await page.focus("#map-canvas");
+    await page.keyboard.press("ArrowLeft");
+    await page.waitForSelector("#map-readout[data-cell='4']");
+    assert.equal(await page.getAttribute("#map-readout [data-x]", "data-x"), "1.5");
     await page.mouse.click(p.x, p.y);
     await page.waitForFunction(() => document.querySelector('[name="foils.1.phase"]').value === "180");
     assert.equal(await page.inputValue('[name="foils.1.x"]'), "2");

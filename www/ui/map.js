@@ -267,7 +267,7 @@ export class MapView {
     this.progress = el("progress", { id: "map-progress", max: 1, value: 0 });
     this.status = el("span", { id: "map-status", className: "map-status", role: "status" });
     root.append(el("div", { className: "map-progress" }, this.progress, this.status));
-    this.canvas = el("canvas", { id: "map-canvas", className: "map-canvas", tabIndex: 0, "aria-label": "Heat map: hover for a cell's values, click to load it into the live view" });
+    this.canvas = el("canvas", { id: "map-canvas", className: "map-canvas", tabIndex: 0, "aria-label": "Heat map: hover or use the arrow keys for a cell's values; click or press Enter to load it into the live view" });
     root.append(this.canvas);
     this.readout = el("p", { id: "map-readout", className: "map-readout", role: "status" }, "Hover over a cell for its values; click it to load that configuration into the live view.");
     root.append(this.readout);
@@ -280,6 +280,7 @@ export class MapView {
     this.pngButton.addEventListener("click", () => this.exportPng());
     this.canvas.addEventListener("mousemove", (e) => this.hover(e));
     this.canvas.addEventListener("click", (e) => this.click(e));
+    this.canvas.addEventListener("keydown", (e) => this.key(e));
     new ResizeObserver(() => this.draw()).observe(this.canvas);
   }
 
@@ -709,8 +710,31 @@ export class MapView {
 
   hover(e) {
     const c = this.cellAt(e);
-    if (!c) return;
+    if (c) this.show(c);
+  }
+
+  /** Keyboard: arrows move through the cells (the readout follows), Enter opens the cell. */
+  key(e) {
+    if (!this.map) return;
     const m = this.map;
+    const cur = this.cursor ?? { i: 0, j: 0 };
+    const moves = { ArrowLeft: [-1, 0], ArrowRight: [1, 0], ArrowUp: [0, 1], ArrowDown: [0, -1] };
+    if (moves[e.key]) {
+      e.preventDefault();
+      const i = Math.min(m.xs.length - 1, Math.max(0, cur.i + moves[e.key][0]));
+      const j = Math.min(m.ys.length - 1, Math.max(0, cur.j + moves[e.key][1]));
+      this.cursor = { i, j };
+      this.show(m.cells[j * m.xs.length + i]);
+    } else if (e.key === "Enter" || e.key === " ") {
+      e.preventDefault();
+      this.open(m.cells[cur.j * m.xs.length + cur.i]);
+    }
+  }
+
+  /** Shows a cell's values in the readout. */
+  show(c) {
+    const m = this.map;
+    this.cursor = { i: c.i, j: c.j };
     const xs = MAP_KEYS.find((k) => k.key === m.settings.x.key), ys = MAP_KEYS.find((k) => k.key === m.settings.y.key);
     const q = this.quantitySpec();
     const part = (text, attrs = {}) => el("span", attrs, text);
@@ -718,8 +742,13 @@ export class MapView {
       part(`${xs.short} ${fmt(c.x)} ${xs.unit}`, { dataset: { x: String(c.x) } }),
       ", ",
       part(`${ys.short} ${fmt(c.y)} ${ys.unit}`, { dataset: { y: String(c.y) } }),
-      ": ",
     ];
+    if (c.case.foils.length >= 2) {
+      // The design asks for the leading-edge-to-leading-edge distance beside the gap.
+      const f0 = c.case.foils[0], f1 = c.case.foils[1];
+      kids.push(` (LE to LE ${fmt((f1.x - f0.x) / f0.chord)} c)`);
+    }
+    kids.push(": ");
     if (!c.finished) kids.push("not computed yet");
     else if (c.error) kids.push(`cannot run: ${c.error}`);
     else {
@@ -743,7 +772,11 @@ export class MapView {
 
   click(e) {
     const c = this.cellAt(e);
-    if (!c) return;
+    if (c) this.open(c);
+  }
+
+  /** Opens the cell's configuration in the live view. */
+  open(c) {
     const xs = MAP_KEYS.find((k) => k.key === this.map.settings.x.key), ys = MAP_KEYS.find((k) => k.key === this.map.settings.y.key);
     this.loadCase(structuredClone(c.case), `the map cell ${xs.short} ${fmt(c.x)} ${xs.unit}, ${ys.short} ${fmt(c.y)} ${ys.unit}`);
   }
