@@ -191,6 +191,10 @@ test("a map worker that cannot load, and bad map settings, reach the user as rea
       assert.match(await page.textContent("#map-status"), /The map stopped: A map worker stopped with an error: .*map-worker\.js/);
       assert.equal(await page.isEnabled("#map-start"), true);
       // Bad settings: the message names the field, its value and the allowed range.
+      await page.fill('[name="map.x.start"]', "abc");
+      await page.click("#map-start");
+      assert.match(await page.textContent("#map-status"), /map\.x\.start: “abc” is not allowed; give a number from 0 to 20 c/);
+      await page.fill('[name="map.x.start"]', "1");
       await page.fill('[name="map.x.count"]', "0");
       await page.click("#map-start");
       assert.match(await page.textContent("#map-status"), /map\.x\.count: “0” is not allowed; give a whole number from 1 to 40/);
@@ -198,6 +202,25 @@ test("a map worker that cannot load, and bad map settings, reach the user as rea
   } finally {
     await blocked.close();
   }
+});
+
+test("a cell the crate rejects shows the crate's message; the other cells run", async () => {
+  await withPage(async ({ page }) => {
+    await openReady(page, server.origin);
+    await coarse(page);
+    // A hind foil with no gap at all overlaps the fore foil as they move.
+    await setAxes(page, { start: 0, stop: 1, count: 2 }, { start: 0, stop: 0, count: 1 });
+    await page.click("#map-start");
+    await page.waitForSelector('#map-canvas[data-state="done"]', { timeout: 120000 });
+    const status = await page.textContent("#map-status");
+    const p = await cellPoint(page, 0, 0, 2, 1);
+    await page.mouse.move(p.x, p.y);
+    await page.waitForSelector("#map-readout[data-cell='0']");
+    const text = await page.textContent("#map-readout");
+    assert.match(status, /Done: 2 cells .* 1 cell could not run \(hover for why\); first: foils\.1 = .*overlap/);
+    assert.match(text, /cannot run: foils\.1 = .*overlap/);
+    assert.equal(await page.getAttribute("#map-canvas", "data-cells"), "2");
+  });
 });
 
 test("the map's settings travel in the link, and bad ones show in the page's notice", async () => {
