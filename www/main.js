@@ -13,6 +13,7 @@ import { CaseFiles } from "./ui/files.js";
 import { ShareLink } from "./ui/share.js";
 import { Exports } from "./ui/exports.js";
 import { MapView } from "./ui/map.js";
+import { RigCheckPanel } from "./ui/rigcheck.js";
 
 const $ = (id) => document.getElementById(id);
 const PLOT_COLOURS = ["#0f6f75", "#b3404a", "#8a7a1f", "#5b4fb0", "#3f8f3f", "#b36b1f", "#9c3f8a", "#4f7fa6"];
@@ -77,6 +78,25 @@ const share = new ShareLink({ state, files, notices, root: $("share-export") });
 new Exports({ client: main, state, root: $("share-export"), wakeCanvas: $("wake"), plotCanvases: ["plot-thrust", "plot-lift", "plot-power"].map($) });
 // Spacing-phase maps (ui/map.js): start from the live view's case; a clicked cell opens in it.
 const mapView = new MapView({ root: $("map-view"), notices, getCase: () => (state.values ? state.candidate() : null), loadCase: (c, label) => files.replaceCase(c, label) });
+// The rig check runs the whole case once, in a worker of its own so the live view keeps going.
+const rigPending = new Map();
+let rigId = 0;
+const rigWorker = new SolverClient("rig check", (msg) => {
+  if (msg.type !== "rig-check") return;
+  const p = rigPending.get(msg.id);
+  if (!p) return;
+  rigPending.delete(msg.id);
+  if (msg.report) p.resolve(msg.report);
+  else p.reject(new Error(msg.error?.message ?? "the case cannot run"));
+}, (text) => {
+  for (const p of rigPending.values()) p.reject(new Error(text));
+  rigPending.clear();
+});
+new RigCheckPanel($("rig-check"), () => state.candidate(), (caseJson) => new Promise((resolve, reject) => {
+  rigId += 1;
+  rigPending.set(rigId, { resolve, reject });
+  rigWorker.post({ type: "rig-check", id: rigId, caseJson });
+}));
 share.extraFragment = () => mapView.fragment();
 
 if ("serviceWorker" in navigator) {

@@ -7,7 +7,7 @@
 //   loads():     Float64Array, loadStride() numbers per foil in the order of loadFields()
 import init, {
   WasmSim, loadFields, loadStride, caseLimits, derivedNumbers, checkCase,
-  caseToLink, linkToCase, normaliseCase, historyHeader, finwakeVersion,
+  caseToLink, linkToCase, normaliseCase, historyHeader, finwakeVersion, rigCheck,
 } from "./pkg/finwake.js";
 
 let ready = null;
@@ -27,6 +27,11 @@ export function loadSolver() {
 /** Derived numbers of a case (array per foil); throws the crate's CaseError for a bad case. */
 export function derived(caseJson) {
   return derivedNumbers(caseJson);
+}
+
+/** The rig check of a case (the JSON of `finwake check --json`); throws the crate's CaseError. */
+export function rigCheckReport(caseJson) {
+  return JSON.parse(rigCheck(caseJson));
 }
 
 /** Validates a case (including the geometry checks); throws the crate's CaseError. */

@@ -1,6 +1,6 @@
 // The solver worker: runs one simulation (role "main") or the single-foil reference run
 // (role "reference") off the page's thread. Messages are documented in solver-client.js.
-import { loadSolver, derived, SolverRun } from "./sim.js";
+import { loadSolver, derived, SolverRun, rigCheckReport } from "./sim.js";
 
 let run = null; // the active SolverRun
 let token = 0; // the active run's token
@@ -154,6 +154,15 @@ self.onmessage = async (ev) => {
         } catch (e) {
           if (!isCaseError(e)) throw e;
           post({ type: "derived", id: msg.id, derived: null, error: caseError(e) });
+        }
+        break;
+      }
+      case "rig-check": {
+        try {
+          post({ type: "rig-check", id: msg.id, report: rigCheckReport(msg.caseJson) });
+        } catch (e) {
+          if (!isCaseError(e)) throw e;
+          post({ type: "rig-check", id: msg.id, report: null, error: caseError(e) });
         }
         break;
       }
