@@ -320,21 +320,6 @@ function pngSize(buf) {
   return { width, height };
 }
 
-/** Equal to round-off: the page runs the wasm build, whose sin, cos and atan2 come from another
- * libm than the native build's and may differ in the last bit; over this 120-step run that grew
- * to 2e-8 of a value at most (measured, moment coefficient), so 1e-6 of the value, plus 1e-12
- * for values that are zero on one side, still tells a different case or step apart. */
-function near(a, b) {
-  return a === b || Math.abs(a - b) <= 1e-6 * Math.max(Math.abs(a), Math.abs(b)) + 1e-12;
-}
-
-function assertNear(a, b, what) {
-  if (typeof b === "number" && typeof a === "number") assert.ok(near(a, b), `${what}: page ${a}, command line ${b}`);
-  else if (Array.isArray(b)) { assert.equal(a.length, b.length, what); b.forEach((v, i) => assertNear(a[i], v, `${what}.${i}`)); }
-  else if (b && typeof b === "object") { assert.deepEqual(Object.keys(a).sort(), Object.keys(b).sort(), what); for (const k of Object.keys(b)) assertNear(a[k], b[k], `${what}.${k}`); }
-  else assert.equal(a, b, what);
-}
-
 async function download(page, button) {
   const [d] = await Promise.all([page.waitForEvent("download"), page.click(button)]);
   return { name: d.suggestedFilename(), bytes: readFileSync(await d.path()) };
@@ -352,7 +337,8 @@ test("every export parses back and agrees with `finwake simulate` on the same ca
     await runToEnd(page);
 
     // History CSV: header block, then one row per foil per step, equal to the command line's
-    // history in every shared column to round-off (see near()).
+    // history in every shared column, bit for bit: the site's wasm build steps exactly like the
+    // native one (tests/wasm/parity.test.mjs), so any difference is another case, step or build.
     const csv = await download(page, "#export-csv");
     assert.equal(csv.name, "finwake-history.csv");
     const lines = csv.bytes.toString("utf8").trimEnd().split("\n");
@@ -376,22 +362,21 @@ test("every export parses back and agrees with `finwake simulate` on the same ca
     const cliNames = cliRows[0].split(",");
     const cliData = cliRows.slice(1).map((l) => l.split(",").map(Number));
     assert.equal(cliData.length, rows.length);
-    let compared = 0, exact = 0, worst = 0;
+    let compared = 0;
     for (const [k, name] of cliNames.entries()) {
       const j = names.indexOf(name);
       assert.ok(j >= 0, `the page's CSV has no column ${name}`);
       for (let r = 0; r < rows.length; r++) {
         const [a, b] = [rows[r][j], cliData[r][k]];
-        assert.ok(near(a, b), `row ${r + 1}, ${name}: page ${a}, command line ${b}`);
+        assert.equal(a, b, `row ${r + 1}, ${name}: page ${a}, command line ${b}`);
         compared += 1;
-        if (a === b) exact += 1; else worst = Math.max(worst, Math.abs(a - b) / Math.abs(b));
       }
     }
 
     // Summary JSON: every key of `finwake simulate --json`, the same numbers, plus the case.
     const sum = await download(page, "#export-summary");
     const s = JSON.parse(sum.bytes.toString("utf8"));
-    for (const key of Object.keys(cliSummary)) assertNear(s[key], cliSummary[key], `summary.${key}`);
+    for (const key of Object.keys(cliSummary)) assert.deepEqual(s[key], cliSummary[key], `summary key ${key}`);
     assert.equal(`finwake ${s.finwake_version}`, version);
     assert.deepEqual(s.case, JSON.parse(cli(["link", "--decode", s.link]).stdout));
     assert.equal(s.run_complete, true);
@@ -426,7 +411,7 @@ test("every export parses back and agrees with `finwake simulate` on the same ca
       assert.ok(p.lines.every((n) => n >= 3 * 40 - 1), `${p.unit}: lines of ${p.lines} points for 3 cycles of 40 steps`);
     }
     assert.equal(parsed.scripts, 0);
-    console.log(`# exports: CSV ${rows.length} rows, ${compared} numbers against \`finwake simulate --history\` (${exact} bit for bit, largest relative difference ${worst.toExponential(1)}); summary against --json; PNG ${wakeSize.width}x${wakeSize.height}; SVG ${parsed.plots.length} plots`);
+    console.log(`# exports: CSV ${rows.length} rows, ${compared} numbers against \`finwake simulate --history\` equal bit for bit; summary equal to --json; PNG ${wakeSize.width}x${wakeSize.height}; SVG ${parsed.plots.length} plots`);
     assert.deepEqual(consoleErrors(log), []);
   });
 });
