@@ -44,7 +44,9 @@
 //!    need one [`Kind::Present`] row for the group itself (e.g. key `rig`, path `rig`): the
 //!    group's keys are then written only when the group is in the case, and `rig=1` marks a group
 //!    present with all-default values. A group that is always present (like `numerics`) needs no
-//!    such row.
+//!    such row. A later foil takes foil 0's group with the rest of foil 0's values; `1.rig=0`
+//!    leaves it out of foil 1. Per-foil keys need a default value (not `Absent`), since a later
+//!    foil that leaves a key out takes foil 0's value and could not say "none".
 //! 3. Run `cargo test --test link`: the coverage test fails while any case key has no row, and
 //!    the round-trip property test then covers the new key. Add a link using the key to
 //!    `tests/link/v1-links.txt` (append only: old lines must keep decoding to the same case).
