@@ -162,6 +162,13 @@ function onSolver(msg) {
       controls.showCaseError(msg.error);
       controls.showDerived(msg.derived);
       activeToken = msg.activeToken;
+      if (!run) {
+        // Nothing runs yet (e.g. a link whose foils overlap): say why over the empty wake view.
+        const over = $("wake-message");
+        over.hidden = false;
+        over.textContent = `This case cannot run: ${msg.error?.message ?? "see the marked control"}. Change the marked value to start.`;
+        $("run-state").textContent = "waiting for a case that can run";
+      }
       break;
     case "frame": frame(msg); break;
     default: break;
@@ -202,6 +209,7 @@ function started(msg) {
   }
   updateClock(0, msg.time);
   setRunState();
+  if (!faulted) $("wake-message").hidden = true;
   document.body.dataset.ready = "true";
 }
 
