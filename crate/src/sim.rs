@@ -33,6 +33,20 @@ pub const SHED_FRACTION: f64 = 0.3;
 /// chain of doublet panels in the solve (the near wake); beyond, they act through their flux.
 pub const NEAR_WAKE_CHORDS: f64 = 0.3;
 
+/// `(0..n).map(f).collect()`, on all cores in native builds (each item is computed exactly as in
+/// the sequential map, so results do not depend on the number of threads); sequential in wasm.
+fn par_map<T: Send, F: Fn(usize) -> T + Sync + Send>(n: usize, f: F) -> Vec<T> {
+    #[cfg(not(target_arch = "wasm32"))]
+    {
+        use rayon::prelude::*;
+        (0..n).into_par_iter().map(f).collect()
+    }
+    #[cfg(target_arch = "wasm32")]
+    {
+        (0..n).map(f).collect()
+    }
+}
+
 /// Opening ratio of the fast summation (cell radius over distance).
 pub const TREE_THETA: f64 = 0.5;
 /// Relative tolerance of the fast summation's far-field expansions (1e-6: far below the
@@ -586,11 +600,9 @@ impl Simulation {
         let mut onset_phi: Vec<Vec<f64>> = Vec::with_capacity(self.bodies.len());
         for b in &mut self.bodies {
             let npan = b.panels();
-            let at_nodes: Vec<([f64; 2], f64)> = b
-                .nodes
-                .iter()
-                .map(|&p| free_flow(p, &self.wake, self.delta_sq))
-                .collect();
+            let at_nodes: Vec<([f64; 2], f64)> = par_map(b.nodes.len(), |k| {
+                free_flow(b.nodes[k], &self.wake, self.delta_sq)
+            });
             let psi: Vec<f64> = b
                 .nodes
                 .iter()
@@ -604,20 +616,17 @@ impl Simulation {
                 })
                 .collect();
             let un: Vec<[f64; 2]> = at_nodes.iter().map(|f| f.0).collect();
-            let um: Vec<[f64; 2]> = b
-                .mids
-                .iter()
-                .map(|&p| {
-                    let mut u = tree.velocity(p);
-                    for &i in &chained {
-                        let c = [self.wake.x[i], self.wake.y[i]];
-                        let v = fast::gaussian_velocity(c, self.wake.gamma[i], self.delta_sq, p);
-                        u[0] -= v[0];
-                        u[1] -= v[1];
-                    }
-                    u
-                })
-                .collect();
+            let um: Vec<[f64; 2]> = par_map(b.mids.len(), |k| {
+                let p = b.mids[k];
+                let mut u = tree.velocity(p);
+                for &i in &chained {
+                    let c = [self.wake.x[i], self.wake.y[i]];
+                    let v = fast::gaussian_velocity(c, self.wake.gamma[i], self.delta_sq, p);
+                    u[0] -= v[0];
+                    u[1] -= v[1];
+                }
+                u
+            });
             let mut phi = vec![0.0; npan];
             let mut acc = 0.0;
             for j in 0..npan {
@@ -762,59 +771,74 @@ impl Simulation {
             return;
         }
         let m: usize = self.bodies.iter().map(|b| b.panels()).sum();
+        // Where each unknown's row lives: (foil, panel).
+        let owners: Vec<(usize, usize)> = self
+            .bodies
+            .iter()
+            .enumerate()
+            .flat_map(|(bi, b)| (0..b.panels()).map(move |j| (bi, j)))
+            .collect();
+        // Rows are independent: assemble them on all cores, then place them.
+        let rows: Vec<(Vec<f64>, f64)> = par_map(m, |row| {
+            let (pi, j) = owners[row];
+            let p = &self.bodies[pi];
+            let mut entries = vec![0.0; m];
+            let mut rhs = 0.0;
+            for (qi, q) in self.bodies.iter().enumerate() {
+                let nq = q.panels();
+                let mut src = 0.0;
+                if pi == qi {
+                    for k in 0..nq {
+                        entries[q.offset + k] = p.self_doublet[(j, k)];
+                        src += p.self_source[(j, k)] * q.sigma[k];
+                    }
+                } else {
+                    let x = p.mids[j];
+                    for k in 0..nq {
+                        let (na, nb) = (q.nodes[k], q.nodes[k + 1]);
+                        let mk = q.mids[k];
+                        let l = q.lengths[k];
+                        let r = [x[0] - mk[0], x[1] - mk[1]];
+                        let r2 = r[0] * r[0] + r[1] * r[1];
+                        // Beyond ten panel lengths the midpoint rule (a point doublet and a
+                        // point source) differs from the exact panel by less than
+                        // (l / r)^2 / 12 = 0.08 % of the entry.
+                        let (d, sp) = if r2 > 100.0 * l * l {
+                            let nn = q.normals[k];
+                            (
+                                l / (2.0 * PI) * (r[0] * nn[0] + r[1] * nn[1]) / r2,
+                                l / (4.0 * PI) * r2.dln(),
+                            )
+                        } else {
+                            (
+                                kernels::doublet_potential(na, nb, x),
+                                kernels::source_potential(na, nb, x),
+                            )
+                        };
+                        entries[q.offset + k] = d;
+                        src += sp * q.sigma[k];
+                    }
+                }
+                rhs -= src;
+                if qi == 0 {
+                    for &(ca, cb, mu) in &self.chain_panels {
+                        rhs -= mu * kernels::doublet_potential(ca, cb, p.mids[j]);
+                    }
+                }
+                // Trailing-edge doublet panel of q, strength mu_last - mu_first (Kutta).
+                let w = kernels::doublet_potential(q.trailing_edge(), q.shed_point, p.mids[j]);
+                entries[q.offset + nq - 1] += w;
+                entries[q.offset] -= w;
+            }
+            (entries, rhs)
+        });
         let mut a = DMatrix::<f64>::zeros(m, m);
         let mut rhs = DVector::<f64>::zeros(m);
-        for (pi, p) in self.bodies.iter().enumerate() {
-            for (qi, q) in self.bodies.iter().enumerate() {
-                let np = p.panels();
-                let nq = q.panels();
-                for j in 0..np {
-                    let row = p.offset + j;
-                    let mut src = 0.0;
-                    if pi == qi {
-                        for k in 0..nq {
-                            a[(row, q.offset + k)] = p.self_doublet[(j, k)];
-                            src += p.self_source[(j, k)] * q.sigma[k];
-                        }
-                    } else {
-                        let x = p.mids[j];
-                        for k in 0..nq {
-                            let (na, nb) = (q.nodes[k], q.nodes[k + 1]);
-                            let m = q.mids[k];
-                            let l = q.lengths[k];
-                            let r = [x[0] - m[0], x[1] - m[1]];
-                            let r2 = r[0] * r[0] + r[1] * r[1];
-                            // Beyond ten panel lengths the midpoint rule (a point doublet and a
-                            // point source) differs from the exact panel by less than
-                            // (l / r)^2 / 12 = 0.08 % of the entry.
-                            let (d, sp) = if r2 > 100.0 * l * l {
-                                let nn = q.normals[k];
-                                (
-                                    l / (2.0 * PI) * (r[0] * nn[0] + r[1] * nn[1]) / r2,
-                                    l / (4.0 * PI) * r2.dln(),
-                                )
-                            } else {
-                                (
-                                    kernels::doublet_potential(na, nb, x),
-                                    kernels::source_potential(na, nb, x),
-                                )
-                            };
-                            a[(row, q.offset + k)] = d;
-                            src += sp * q.sigma[k];
-                        }
-                    }
-                    rhs[row] -= src;
-                    if qi == 0 {
-                        for &(ca, cb, m) in &self.chain_panels {
-                            rhs[row] -= m * kernels::doublet_potential(ca, cb, p.mids[j]);
-                        }
-                    }
-                    // Trailing-edge doublet panel of q, strength mu_last - mu_first (Kutta).
-                    let w = kernels::doublet_potential(q.trailing_edge(), q.shed_point, p.mids[j]);
-                    a[(row, q.offset + nq - 1)] += w;
-                    a[(row, q.offset)] -= w;
-                }
+        for (row, (entries, r)) in rows.into_iter().enumerate() {
+            for (col, v) in entries.into_iter().enumerate() {
+                a[(row, col)] = v;
             }
+            rhs[row] = r;
         }
         let x = match self.solve_blocks(&a, &rhs) {
             Some(x) => x,
@@ -1070,30 +1094,28 @@ impl Simulation {
         let new_from = np - self.bodies.len();
         let expansions: Vec<BodyExpansion> =
             self.bodies.iter().map(|b| self.body_expansion(b)).collect();
-        let vel: Vec<[f64; 2]> = (0..np)
-            .map(|i| {
-                let p = [self.wake.x[i], self.wake.y[i]];
-                // The tree holds the particles of the start of the step; add this step's new ones.
-                let mut u = tree.velocity(p);
-                for k in new_from..np {
-                    let v = fast::gaussian_velocity(
-                        [self.wake.x[k], self.wake.y[k]],
-                        self.wake.gamma[k],
-                        self.delta_sq,
-                        p,
-                    );
-                    u[0] += v[0];
-                    u[1] += v[1];
-                }
-                u[0] += self.speed;
-                for (b, e) in self.bodies.iter().zip(&expansions) {
-                    let v = self.body_velocity(b, e, p);
-                    u[0] += v[0];
-                    u[1] += v[1];
-                }
-                u
-            })
-            .collect();
+        let vel: Vec<[f64; 2]> = par_map(np, |i| {
+            let p = [self.wake.x[i], self.wake.y[i]];
+            // The tree holds the particles of the start of the step; add this step's new ones.
+            let mut u = tree.velocity(p);
+            for k in new_from..np {
+                let v = fast::gaussian_velocity(
+                    [self.wake.x[k], self.wake.y[k]],
+                    self.wake.gamma[k],
+                    self.delta_sq,
+                    p,
+                );
+                u[0] += v[0];
+                u[1] += v[1];
+            }
+            u[0] += self.speed;
+            for (b, e) in self.bodies.iter().zip(&expansions) {
+                let v = self.body_velocity(b, e, p);
+                u[0] += v[0];
+                u[1] += v[1];
+            }
+            u
+        });
         for i in 0..np {
             let u = vel[i];
             let up = self.wake.u_prev[i];
