@@ -121,6 +121,41 @@ pub struct FoilLoads {
     pub circulation: f64,
 }
 
+impl FoilLoads {
+    /// Names, with units, of the numbers of [`FoilLoads::values`], in order (the layout of the
+    /// browser bindings' loads buffers).
+    pub const FIELDS: [&'static str; 11] = [
+        "heave (m)",
+        "pitch (deg)",
+        "angle_of_attack (deg)",
+        "lift_coefficient",
+        "thrust_coefficient",
+        "moment_coefficient",
+        "power_coefficient",
+        "lift (N)",
+        "thrust (N)",
+        "moment (N m)",
+        "power (W)",
+    ];
+
+    /// The loads as numbers in the order of [`FoilLoads::FIELDS`].
+    pub fn values(&self) -> [f64; 11] {
+        [
+            self.heave,
+            self.pitch,
+            self.angle_of_attack,
+            self.lift_coefficient,
+            self.thrust_coefficient,
+            self.moment_coefficient,
+            self.power_coefficient,
+            self.lift,
+            self.thrust,
+            self.moment,
+            self.power,
+        ]
+    }
+}
+
 /// One foil's geometry, motion and solver state.
 #[derive(Debug, Clone)]
 struct Body {

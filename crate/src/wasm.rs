@@ -28,38 +28,14 @@ use crate::validate as limits;
 use crate::water;
 
 /// Numbers per foil in the loads buffers (the fields of [`FoilLoads`]).
-pub const LOAD_STRIDE: usize = 11;
+pub const LOAD_STRIDE: usize = FoilLoads::FIELDS.len();
 
 /// Names of the loads fields, in buffer order, with their units.
-const LOAD_FIELDS: [&str; LOAD_STRIDE] = [
-    "heave (m)",
-    "pitch (deg)",
-    "angle_of_attack (deg)",
-    "lift_coefficient",
-    "thrust_coefficient",
-    "moment_coefficient",
-    "power_coefficient",
-    "lift (N)",
-    "thrust (N)",
-    "moment (N m)",
-    "power (W)",
-];
+const LOAD_FIELDS: [&str; LOAD_STRIDE] = FoilLoads::FIELDS;
 
 /// Appends one foil's loads in buffer order.
 fn push_loads(out: &mut Vec<f64>, l: &FoilLoads) {
-    out.extend_from_slice(&[
-        l.heave,
-        l.pitch,
-        l.angle_of_attack,
-        l.lift_coefficient,
-        l.thrust_coefficient,
-        l.moment_coefficient,
-        l.power_coefficient,
-        l.lift,
-        l.thrust,
-        l.moment,
-        l.power,
-    ]);
+    out.extend_from_slice(&l.values());
 }
 
 /// A JS `Error` whose message is the case error's text, with the fields `path`, `value`,

@@ -14,34 +14,10 @@ use crate::Result;
 pub const PARITY_STEPS: usize = 300;
 
 /// The loads fields in the order of the wasm loads buffers (crate/src/wasm.rs, `loadFields()`).
-const LOAD_FIELDS: [&str; 11] = [
-    "heave (m)",
-    "pitch (deg)",
-    "angle_of_attack (deg)",
-    "lift_coefficient",
-    "thrust_coefficient",
-    "moment_coefficient",
-    "power_coefficient",
-    "lift (N)",
-    "thrust (N)",
-    "moment (N m)",
-    "power (W)",
-];
+const LOAD_FIELDS: [&str; 11] = FoilLoads::FIELDS;
 
 fn load_values(l: &FoilLoads) -> [f64; 11] {
-    [
-        l.heave,
-        l.pitch,
-        l.angle_of_attack,
-        l.lift_coefficient,
-        l.thrust_coefficient,
-        l.moment_coefficient,
-        l.power_coefficient,
-        l.lift,
-        l.thrust,
-        l.moment,
-        l.power,
-    ]
+    l.values()
 }
 
 fn hex(v: f64) -> String {
