@@ -2,7 +2,8 @@
 // Chromium driven by playwright-core with the offline flags, and collectors for console messages,
 // page errors and requests.
 import { createServer } from "node:http";
-import { mkdtempSync, mkdirSync, readFileSync, rmSync, statSync } from "node:fs";
+import { execFileSync } from "node:child_process";
+import { mkdtempSync, mkdirSync, readFileSync, rmSync, statSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { extname, join, normalize, sep } from "node:path";
 import { chromium } from "playwright-core";
@@ -90,4 +91,24 @@ export async function runToEnd(page, timeout = 300000) {
 
 export function consoleErrors(log) {
   return log.console.filter((m) => m.type === "error").map((m) => m.text).concat(log.errors);
+}
+
+/** Runs `fn` with a fresh browser (options as `browser`), closing it afterwards; `onClose(b)`
+ * sees the browser's logs just before it closes. */
+export async function withPage(fn, opts, onClose) {
+  const b = await browser(opts);
+  try {
+    return await fn(b);
+  } finally {
+    if (onClose) onClose(b);
+    await b.close();
+  }
+}
+
+/** `finwake simulate CASE --json` (the CLI at FINWAKE_CLI) on a case object. */
+export function simulateCli(caseObj) {
+  const dir = mkdtempSync(join(tmpdir(), "finwake-case-"));
+  const file = join(dir, "case.json");
+  writeFileSync(file, JSON.stringify(caseObj, null, 2));
+  return JSON.parse(execFileSync(CLI, ["simulate", file, "--json"], { encoding: "utf8" }));
 }

@@ -4,32 +4,16 @@
 // settings travel in the link with strict validation, and the palettes keep a monotone lightness.
 import { test, before, after } from "node:test";
 import assert from "node:assert/strict";
-import { execFileSync } from "node:child_process";
-import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
-import { serve, browser, openReady, consoleErrors, ARTIFACTS, CLI, SITE } from "./harness.mjs";
+import { serve, openReady, consoleErrors, withPage, simulateCli, ARTIFACTS, CLI, SITE } from "./harness.mjs";
 
 let server;
 before(async () => { server = await serve(); });
 after(async () => { await server.close(); });
 
-async function withPage(fn, opts) {
-  const b = await browser(opts);
-  try {
-    return await fn(b);
-  } finally {
-    await b.close();
-  }
-}
 
-function runCli(caseObj) {
-  const dir = mkdtempSync(join(tmpdir(), "finwake-map-case-"));
-  const file = join(dir, "case.json");
-  writeFileSync(file, JSON.stringify(caseObj, null, 2));
-  return JSON.parse(execFileSync(CLI, ["simulate", file, "--json"], { encoding: "utf8" }));
-}
 
 /** The same number to 3 significant figures (the page's readout rule, as page.test.mjs). */
 function assertSig3(pageValue, cliValue, what) {
@@ -148,13 +132,13 @@ test("a 3 x 2 map completes and draws, hover shows a cell, a click loads it into
     assert.equal(caseObj.numerics.cycles, 3, "the loaded cell keeps the coarse numerics");
 
     if (CLI) {
-      const cli = runCli(caseObj);
+      const cli = simulateCli(caseObj);
       assertSig3(hover.total, cli.total.thrust, "total.thrust");
       assertSig3(hover.hind, cli.foils[1].thrust, "foils.1.thrust");
       // The ratio's baseline: the hind foil alone, phase 0, at the origin (crate/src/sweep.rs `isolated`).
       const alone = structuredClone(caseObj);
       alone.foils = [{ ...caseObj.foils[1], x: 0, y: 0, phase: 0 }];
-      assertSig3(hover.ratio, cli.foils[1].thrust / runCli(alone).foils[0].thrust, "foils.1.thrust_ratio");
+      assertSig3(hover.ratio, cli.foils[1].thrust / simulateCli(alone).foils[0].thrust, "foils.1.thrust_ratio");
     }
     assert.deepEqual(consoleErrors(log), [], "console errors");
   });

@@ -2,11 +2,9 @@
 // playwright-core against the site that `cargo xtask site` builds.
 import { test, before, after } from "node:test";
 import assert from "node:assert/strict";
-import { execFileSync } from "node:child_process";
-import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
-import { serve, browser, openReady, readout, runToEnd, consoleErrors, ARTIFACTS, CLI, SITE } from "./harness.mjs";
+import { serve, openReady, readout, runToEnd, consoleErrors, withPage as withBrowser, simulateCli, ARTIFACTS, CLI, SITE } from "./harness.mjs";
 
 let server;
 const allRequests = [];
@@ -14,15 +12,7 @@ const origins = []; // every origin these tests serve the site from
 before(async () => { server = await serve(); origins.push(server.origin); });
 after(async () => { await server.close(); });
 
-async function withPage(fn, opts) {
-  const b = await browser(opts);
-  try {
-    return await fn(b);
-  } finally {
-    allRequests.push(...b.log.requests);
-    await b.close();
-  }
-}
+const withPage = (fn, opts) => withBrowser(fn, opts, (b) => allRequests.push(...b.log.requests));
 
 /** A cheap fingerprint of the wake canvas pixels. */
 async function canvasPrint(page) {
@@ -39,12 +29,6 @@ async function canvasPrint(page) {
   });
 }
 
-function runCli(caseObj) {
-  const dir = mkdtempSync(join(tmpdir(), "finwake-case-"));
-  const file = join(dir, "case.json");
-  writeFileSync(file, JSON.stringify(caseObj, null, 2));
-  return JSON.parse(execFileSync(CLI, ["simulate", file, "--json"], { encoding: "utf8" }));
-}
 
 /** Equal to 3 significant figures: the readout text against the command line's full value. */
 function assertSig3(text, value, what) {
@@ -109,7 +93,7 @@ test("the readouts equal `finwake simulate` on the same case after the same cycl
     const caseObj = JSON.parse(await page.inputValue("#case-json"));
     const defaultCase = JSON.parse(readFileSync(join(SITE, "cases", "tandem-two-chords.json"), "utf8"));
     assert.deepEqual(caseObj.foils, defaultCase.foils, "the page opens with the default tandem case");
-    const cli = runCli(caseObj);
+    const cli = simulateCli(caseObj);
     let compared = 0;
     for (const [i, f] of cli.foils.entries()) {
       for (const key of ["thrust", "thrust_coefficient", "power", "efficiency", "max_angle_of_attack"]) {
@@ -123,7 +107,7 @@ test("the readouts equal `finwake simulate` on the same case after the same cycl
       compared += 1;
     }
     // The background single-foil reference: the hind foil alone, phase 0 (foil 0's reference).
-    const single = runCli({ ...caseObj, foils: [{ ...caseObj.foils[1], x: 0, y: 0, phase: 0 }] });
+    const single = simulateCli({ ...caseObj, foils: [{ ...caseObj.foils[1], x: 0, y: 0, phase: 0 }] });
     const s = single.foils[0];
     await page.waitForFunction(() => document.querySelector('[data-quantity="single.thrust"]')?.dataset.value !== undefined);
     assertSig3((await readout(page, "single.thrust")).text, s.thrust, "single.thrust");

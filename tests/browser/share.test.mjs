@@ -10,21 +10,13 @@ import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { inflateSync } from "node:zlib";
-import { serve, browser, runToEnd, consoleErrors, CLI, SITE } from "./harness.mjs";
+import { serve, runToEnd, consoleErrors, withPage, CLI, SITE } from "./harness.mjs";
 
 const NEEDS_CLI = !CLI && "FINWAKE_CLI is not set (run through `cargo xtask test`)";
 let server;
 before(async () => { server = await serve(); });
 after(async () => { await server.close(); });
 
-async function withPage(fn, opts) {
-  const b = await browser(opts);
-  try {
-    return await fn(b);
-  } finally {
-    await b.close();
-  }
-}
 
 const scratch = mkdtempSync(join(tmpdir(), "finwake-share-"));
 function caseFile(name, text) {
