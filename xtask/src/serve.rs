@@ -18,11 +18,17 @@ pub fn serve(port: u16) -> Result<()> {
         "xtask: serving {} at http://{addr}/ (Ctrl-C stops)",
         dir.display()
     );
+    // One thread per request: a browser opens several connections at once, and answering them
+    // one after another on this thread stalled page loads.
+    let dir = std::sync::Arc::new(dir);
     for request in server.incoming_requests() {
-        let response = respond(&dir, request.url());
-        if let Err(e) = request.respond(response) {
-            eprintln!("xtask: a response failed: {e}");
-        }
+        let dir = std::sync::Arc::clone(&dir);
+        std::thread::spawn(move || {
+            let response = respond(&dir, request.url());
+            if let Err(e) = request.respond(response) {
+                eprintln!("xtask: a response failed: {e}");
+            }
+        });
     }
     Ok(())
 }
