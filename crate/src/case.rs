@@ -128,6 +128,10 @@ pub struct Numerics {
     pub max_particles: usize,
     /// Cycles over which the motion amplitude ramps smoothly from 0 to 1 (0 to 10; 0 = none).
     pub ramp_cycles: f64,
+    /// Fraction of their distance to the nearest foil (0 to 0.5). Two neighbouring same-sign
+    /// wake particles of one foil farther than two chords from every foil are merged when they
+    /// are closer than this; 0 keeps every particle up to `max_particles`.
+    pub wake_merge: f64,
 }
 
 impl Default for Numerics {
@@ -141,6 +145,7 @@ impl Default for Numerics {
             core_size: 0.05,
             max_particles: 4000,
             ramp_cycles: 1.0,
+            wake_merge: 0.1,
         }
     }
 }

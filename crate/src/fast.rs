@@ -24,6 +24,8 @@ type C64 = Complex<f64>;
 const CORE_CUT: f64 = 6.0;
 /// Elements per leaf cell.
 const LEAF: usize = 24;
+/// Beyond this `r^2 / delta^2`, `E1` (below `exp(-x) / x = 1e-19`) is negligible beside `ln r^2`.
+const E1_NEGLIGIBLE: f64 = 40.0;
 /// Euler-Mascheroni constant.
 const EULER_GAMMA: f64 = 0.577_215_664_901_532_9;
 
@@ -71,6 +73,20 @@ fn e1_series_tail(x: f64) -> f64 {
     sum
 }
 
+/// Order of the multipole expansion needed at radius-over-distance `ratio` for relative
+/// tolerance `tolerance`: the smallest `p >= 1` with `ratio^p <= tolerance` (the truncation
+/// error after order `p` is below `ratio^(p + 1)`), at most `max`.
+#[inline]
+pub fn terms_needed(ratio: f64, tolerance: f64, max: usize) -> usize {
+    let mut p = 1;
+    let mut bound = ratio;
+    while bound > tolerance && p < max {
+        bound *= ratio;
+        p += 1;
+    }
+    p
+}
+
 /// Velocity at `p` of a Gaussian vortex blob (circulation `gamma` at `c`, squared core
 /// `delta_sq`; 0 gives a point vortex). Zero at the centre.
 #[inline]
@@ -105,6 +121,8 @@ pub fn gaussian_stream_function(c: [f64; 2], gamma: f64, delta_sq: f64, p: [f64;
     if x <= 1.0 {
         // ln r^2 + E1(x) = ln delta^2 - gamma_E + tail(x): no cancellation near the centre.
         k * (delta_sq.dln() - EULER_GAMMA + e1_series_tail(x))
+    } else if x > E1_NEGLIGIBLE {
+        k * r2.dln()
     } else {
         k * (r2.dln() + exp_integral_e1(x))
     }
@@ -225,6 +243,7 @@ pub struct Tree {
     moments: Vec<C64>,
     order: usize,
     theta: f64,
+    tolerance: f64,
 }
 
 impl Tree {
@@ -249,6 +268,7 @@ impl Tree {
             moments: Vec::new(),
             order,
             theta,
+            tolerance,
         };
         tree.moments = vec![C64::new(0.0, 0.0); tree.cells.len() * (order + 1)];
         // Leaves sum their elements; a parent shifts its children's moments to its own centre
@@ -338,9 +358,13 @@ impl Tree {
             let d = (dz.re * dz.re + dz.im * dz.im).sqrt();
             if cell.radius < self.theta * d && d - cell.radius > CORE_CUT * cell.core {
                 let base = ci * (self.order + 1);
+                // The terms this cell needs: the truncation error after order p is below
+                // (R / d)^(p + 1), so the smallest p with (R / d)^p <= tolerance keeps the
+                // guarantee of the full order (which is that p for R / d = theta).
+                let p_used = terms_needed(cell.radius / d, self.tolerance, self.order);
                 let t = C64::new(1.0, 0.0) / dz;
-                let mut acc = self.moments[base + self.order];
-                for m in (0..self.order).rev() {
+                let mut acc = self.moments[base + p_used];
+                for m in (0..p_used).rev() {
                     acc = acc * t + self.moments[base + m];
                 }
                 let w = acc * t;
@@ -349,16 +373,18 @@ impl Tree {
                 if PSI {
                     // Complex potential a_0 log(dz) - sum a_m / (m dz^m); its imaginary part is
                     // the stream function of the vortices (a tree holding sources has no psi).
-                    let mut pacc = self.moments[base + self.order] / self.order as f64;
-                    for m in (1..self.order).rev() {
+                    let mut pacc = self.moments[base + p_used] / p_used as f64;
+                    for m in (1..p_used).rev() {
                         pacc = pacc * t + self.moments[base + m] / m as f64;
                     }
-                    let log_dz = C64::new(
-                        0.5 * (dz.re * dz.re + dz.im * dz.im).dln(),
-                        dz.im.datan2(dz.re),
-                    );
-                    let f = self.moments[base] * log_dz - pacc * t;
-                    psi += f.im;
+                    // Im[a_0 log dz] = Re a_0 arg dz + Im a_0 ln |dz|; vortices alone give a
+                    // purely imaginary a_0 and need no angle.
+                    let a0 = self.moments[base];
+                    let mut f = a0.im * 0.5 * (dz.re * dz.re + dz.im * dz.im).dln();
+                    if a0.re != 0.0 {
+                        f += a0.re * dz.im.datan2(dz.re);
+                    }
+                    psi += f - (pacc * t).im;
                 }
             } else if let Some((a, b)) = cell.children {
                 stack[top] = a;

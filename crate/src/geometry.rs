@@ -63,19 +63,29 @@ pub fn inside_polygon(nodes: &[[f64; 2]], p: [f64; 2]) -> bool {
     inside
 }
 
+/// Nearest point to `p` on the segment from `a` to `b`.
+fn nearest_on_segment(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> [f64; 2] {
+    let d = [b[0] - a[0], b[1] - a[1]];
+    let len2 = d[0] * d[0] + d[1] * d[1];
+    let s = if len2 > 0.0 {
+        (((p[0] - a[0]) * d[0] + (p[1] - a[1]) * d[1]) / len2).clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
+    [a[0] + s * d[0], a[1] + s * d[1]]
+}
+
+/// Distance from `p` to the segment from `a` to `b`.
+pub fn segment_distance(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> f64 {
+    let q = nearest_on_segment(a, b, p);
+    ((p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2)).sqrt()
+}
+
 /// Nearest point on the polygon's edges to `p`, the edge index, and the distance.
 pub fn nearest_on_polygon(nodes: &[[f64; 2]], p: [f64; 2]) -> ([f64; 2], usize, f64) {
     let mut best = (nodes[0], 0, f64::INFINITY);
     for (k, w) in nodes.windows(2).enumerate() {
-        let (a, b) = (w[0], w[1]);
-        let d = [b[0] - a[0], b[1] - a[1]];
-        let len2 = d[0] * d[0] + d[1] * d[1];
-        let s = if len2 > 0.0 {
-            (((p[0] - a[0]) * d[0] + (p[1] - a[1]) * d[1]) / len2).clamp(0.0, 1.0)
-        } else {
-            0.0
-        };
-        let q = [a[0] + s * d[0], a[1] + s * d[1]];
+        let q = nearest_on_segment(w[0], w[1], p);
         let dist = ((p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2)).sqrt();
         if dist < best.2 {
             best = (q, k, dist);

@@ -196,6 +196,13 @@ pub const KEYS: &[LinkKey] = &[
     ),
     row("cap", "numerics.max_particles", Whole, D::Whole(4000), "-"),
     row(
+        "merge",
+        "numerics.wake_merge",
+        Number,
+        D::Number(0.1),
+        "fraction of the distance to the nearest foil",
+    ),
+    row(
         "ramp",
         "numerics.ramp_cycles",
         Number,

@@ -34,18 +34,28 @@ pub const SHED_FRACTION: f64 = 0.3;
 pub const NEAR_WAKE_CHORDS: f64 = 0.3;
 
 /// `(0..n).map(f).collect()`, on all cores in native builds (each item is computed exactly as in
-/// the sequential map, so results do not depend on the number of threads); sequential in wasm.
+/// the sequential map, so results do not depend on the number of threads); sequential in wasm,
+/// and sequential when already on a worker of the thread pool (a sweep runs whole simulations
+/// in parallel, and splitting each step's small loops again only adds scheduling).
 fn par_map<T: Send, F: Fn(usize) -> T + Sync + Send>(n: usize, f: F) -> Vec<T> {
     #[cfg(not(target_arch = "wasm32"))]
     {
         use rayon::prelude::*;
-        (0..n).into_par_iter().map(f).collect()
+        if rayon::current_thread_index().is_some() || rayon::current_num_threads() < 2 {
+            (0..n).map(f).collect()
+        } else {
+            (0..n).into_par_iter().map(f).collect()
+        }
     }
     #[cfg(target_arch = "wasm32")]
     {
         (0..n).map(f).collect()
     }
 }
+
+/// Chords (of the largest foil) from every foil's chord line within which wake particles are
+/// never merged by distance.
+pub const MERGE_CLEAR_CHORDS: f64 = 2.0;
 
 /// Opening ratio of the fast summation (cell radius over distance).
 pub const TREE_THETA: f64 = 0.5;
@@ -72,9 +82,11 @@ impl Expansion {
         let dz = Complex::new(p[0] - self.centre[0], p[1] - self.centre[1]);
         let d = (dz.re * dz.re + dz.im * dz.im).sqrt();
         if self.radius < TREE_THETA * d && d - self.radius > 6.0 * self.core {
+            let order = self.moments.len() - 1;
+            let p_used = fast::terms_needed(self.radius / d, TREE_TOLERANCE, order);
             let t = Complex::new(1.0, 0.0) / dz;
             let mut acc = Complex::new(0.0, 0.0);
-            for mm in self.moments.iter().rev() {
+            for mm in self.moments[..=p_used].iter().rev() {
                 acc = acc * t + mm;
             }
             let w = acc * t;
@@ -82,6 +94,69 @@ impl Expansion {
         } else {
             None
         }
+    }
+}
+
+/// Far-field expansion of a foil's source panels taken as point sources at their midpoints
+/// (strength `sigma l`), the midpoint rule the coupling of two foils uses beyond ten panel
+/// lengths: `phi = Re[b_0 log(z - c) - sum b_n / (n (z - c)^n)]`, `b_n = sum s_k (z_k - c)^n`,
+/// `s_k = sigma_k l_k / (2 pi)`.
+#[derive(Debug, Clone)]
+struct SourceExpansion {
+    centre: [f64; 2],
+    radius: f64,
+    /// m. Longest panel.
+    longest: f64,
+    moments: Vec<Complex<f64>>,
+}
+
+impl SourceExpansion {
+    /// m^2/s per (m/s). Source potential at `p` when every panel is beyond ten panel lengths and
+    /// the expansion converges to [`TREE_TOLERANCE`] there; `None` otherwise.
+    fn potential(&self, p: [f64; 2]) -> Option<f64> {
+        let dz = Complex::new(p[0] - self.centre[0], p[1] - self.centre[1]);
+        let d = (dz.re * dz.re + dz.im * dz.im).sqrt();
+        if !(self.radius < TREE_THETA * d && d - self.radius > 10.0 * self.longest) {
+            return None;
+        }
+        let p_used = fast::terms_needed(self.radius / d, TREE_TOLERANCE, self.moments.len() - 1);
+        let t = Complex::new(1.0, 0.0) / dz;
+        let mut acc = self.moments[p_used] / p_used as f64;
+        for n in (1..p_used).rev() {
+            acc = acc * t + self.moments[n] / n as f64;
+        }
+        let log_abs = 0.5 * (dz.re * dz.re + dz.im * dz.im).dln();
+        let b0 = self.moments[0];
+        // Re[b_0 log dz]: b_0 is real (a sum of real strengths).
+        Some(b0.re * log_abs - (acc * t).re)
+    }
+}
+
+/// The [`SourceExpansion`] of foil `b`'s current source strengths.
+fn source_expansion(b: &Body) -> SourceExpansion {
+    let order = ((TREE_TOLERANCE.dln() / TREE_THETA.dln()).ceil() as usize).max(1);
+    let (lo, hi) = bounding_box(&b.nodes, 0.0);
+    let c = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
+    let radius = b
+        .mids
+        .iter()
+        .map(|p| ((p[0] - c[0]).powi(2) + (p[1] - c[1]).powi(2)).sqrt())
+        .fold(0.0, f64::max);
+    let cc = Complex::new(c[0], c[1]);
+    let mut moments = vec![Complex::new(0.0, 0.0); order + 1];
+    for k in 0..b.panels() {
+        let xi = Complex::new(b.mids[k][0], b.mids[k][1]) - cc;
+        let mut pw = Complex::new(b.sigma[k] * b.lengths[k] / (2.0 * PI), 0.0);
+        for mm in moments.iter_mut() {
+            *mm += pw;
+            pw *= xi;
+        }
+    }
+    SourceExpansion {
+        centre: c,
+        radius,
+        longest: b.lengths.iter().copied().fold(0.0, f64::max),
+        moments,
     }
 }
 
@@ -334,15 +409,82 @@ impl Wake {
         u
     }
 
-    /// The particles as elements for the fast summation.
-    fn elements(&self, delta_sq: f64) -> fast::Elements {
-        fast::Elements {
-            x: self.x.clone(),
-            y: self.y.clone(),
-            gamma: self.gamma.clone(),
-            source: vec![0.0; self.x.len()],
-            delta_sq: vec![delta_sq; self.x.len()],
+    /// The particles not marked in `skip`, as elements for the fast summation.
+    fn elements_except(&self, skip: &[bool], delta_sq: f64) -> fast::Elements {
+        let mut el = fast::Elements::default();
+        for i in (0..self.len()).filter(|&i| !skip[i]) {
+            el.push([self.x[i], self.y[i]], self.gamma[i], 0.0, delta_sq);
         }
+        el
+    }
+
+    /// Merges consecutive same-sign particles of the same foil, pairwise, where `spacing(i)`
+    /// (m, non-positive near the foils) exceeds their separation. Circulation and its first
+    /// moment are conserved. Returns the number merged away.
+    fn merge_by_distance(&mut self, foils: usize, spacing: impl Fn([f64; 2]) -> f64) -> usize {
+        let n = self.len();
+        let mut keep = vec![true; n];
+        let mut pending: Vec<Option<(usize, f64)>> = vec![None; foils];
+        let mut removed = 0;
+        for i in 0..n {
+            let o = self.owner[i];
+            let p = [self.x[i], self.y[i]];
+            let allowed = spacing(p);
+            if allowed <= 0.0 {
+                pending[o] = None;
+                continue;
+            }
+            match pending[o] {
+                Some((j, allowed_j)) if self.gamma[j] * self.gamma[i] > 0.0 => {
+                    let d2 = (self.x[j] - p[0]).powi(2) + (self.y[j] - p[1]).powi(2);
+                    let limit = allowed.min(allowed_j);
+                    if d2 < limit * limit {
+                        self.merge_into(j, i);
+                        keep[i] = false;
+                        removed += 1;
+                        pending[o] = None;
+                    } else {
+                        pending[o] = Some((i, allowed));
+                    }
+                }
+                _ => pending[o] = Some((i, allowed)),
+            }
+        }
+        if removed > 0 {
+            self.retain(&keep);
+        }
+        removed
+    }
+
+    /// Merges particle `i` into particle `j` (circulation-weighted position and velocity).
+    fn merge_into(&mut self, j: usize, i: usize) {
+        let (gi, gj) = (self.gamma[i], self.gamma[j]);
+        let g = gi + gj;
+        self.x[j] = (gj * self.x[j] + gi * self.x[i]) / g;
+        self.y[j] = (gj * self.y[j] + gi * self.y[i]) / g;
+        let (ui, uj) = (self.u_prev[i], self.u_prev[j]);
+        self.u_prev[j] = [(gj * uj[0] + gi * ui[0]) / g, (gj * uj[1] + gi * ui[1]) / g];
+        self.gamma[j] = g;
+    }
+
+    /// Keeps the particles marked in `keep`, in order.
+    fn retain(&mut self, keep: &[bool]) {
+        let mut k = 0;
+        for i in 0..self.len() {
+            if keep[i] {
+                self.x[k] = self.x[i];
+                self.y[k] = self.y[i];
+                self.gamma[k] = self.gamma[i];
+                self.u_prev[k] = self.u_prev[i];
+                self.owner[k] = self.owner[i];
+                k += 1;
+            }
+        }
+        self.x.truncate(k);
+        self.y.truncate(k);
+        self.gamma.truncate(k);
+        self.u_prev.truncate(k);
+        self.owner.truncate(k);
     }
 
     /// Merges the oldest same-sign neighbours of the same foil, pairwise, until at most
@@ -362,13 +504,7 @@ impl Wake {
             let o = self.owner[i];
             match pending[o] {
                 Some(j) if self.gamma[j] * self.gamma[i] > 0.0 => {
-                    let (gi, gj) = (self.gamma[i], self.gamma[j]);
-                    let g = gi + gj;
-                    self.x[j] = (gj * self.x[j] + gi * self.x[i]) / g;
-                    self.y[j] = (gj * self.y[j] + gi * self.y[i]) / g;
-                    let (ui, uj) = (self.u_prev[i], self.u_prev[j]);
-                    self.u_prev[j] = [(gj * uj[0] + gi * ui[0]) / g, (gj * uj[1] + gi * ui[1]) / g];
-                    self.gamma[j] = g;
+                    self.merge_into(j, i);
                     keep[i] = false;
                     removed += 1;
                     pending[o] = None;
@@ -376,22 +512,7 @@ impl Wake {
                 _ => pending[o] = Some(i),
             }
         }
-        let mut k = 0;
-        for i in 0..self.len() {
-            if keep[i] {
-                self.x[k] = self.x[i];
-                self.y[k] = self.y[i];
-                self.gamma[k] = self.gamma[i];
-                self.u_prev[k] = self.u_prev[i];
-                self.owner[k] = self.owner[i];
-                k += 1;
-            }
-        }
-        self.x.truncate(k);
-        self.y.truncate(k);
-        self.gamma.truncate(k);
-        self.u_prev.truncate(k);
-        self.owner.truncate(k);
+        self.retain(&keep);
     }
 }
 
@@ -412,6 +533,9 @@ pub struct Simulation {
     impulse: Vec<[f64; 2]>,
     /// Near-wake doublet panels of the current step: start, end (m), strength (m^2/s).
     chain_panels: Vec<([f64; 2], [f64; 2], f64)>,
+    /// Fraction of the distance to the nearest foil below which neighbouring far-wake particles
+    /// are merged (`numerics.wake_merge`; 0 = never).
+    merge_ratio: f64,
 }
 
 impl Simulation {
@@ -466,6 +590,7 @@ impl Simulation {
             history: Vec::with_capacity(total_steps),
             impulse: Vec::with_capacity(total_steps),
             chain_panels: Vec::new(),
+            merge_ratio: num.wake_merge,
         })
     }
 
@@ -578,24 +703,6 @@ impl Simulation {
             let pose = b.motion.pose(t);
             b.set_pose(pose);
         }
-        // One fast-summation tree over the wake at this instant serves the shed points, the onset
-        // flow on the foils and the convection.
-        let tree = fast::Tree::new(
-            &self.wake.elements(self.delta_sq),
-            TREE_THETA,
-            TREE_TOLERANCE,
-        );
-        // Newest shed point behind each trailing edge.
-        for b in &mut self.bodies {
-            let te = b.trailing_edge();
-            let uw = tree.velocity(te);
-            let vte = b.pose.velocity_at(te);
-            let rel = [u_inf[0] + uw[0] - vte[0], u_inf[1] + uw[1] - vte[1]];
-            b.shed_point = [
-                te[0] + SHED_FRACTION * rel[0] * self.dt,
-                te[1] + SHED_FRACTION * rel[1] * self.dt,
-            ];
-        }
         // The newest particles of each foil near its trailing edge form a chain of doublet
         // panels from the shed point (the near wake, as in Katz & Plotkin 2001, section 13.12):
         // their potential enters the Dirichlet condition exactly. The chain ends in a closing
@@ -603,13 +710,56 @@ impl Simulation {
         let prev_circulation: Vec<f64> = self.bodies.iter().map(|b| b.circulation).collect();
         let chains = self.near_wake_chains();
         let mut in_chain = vec![false; self.wake.len()];
+        for &i in chains.iter().flatten() {
+            in_chain[i] = true;
+        }
+        let chained: Vec<usize> = (0..self.wake.len()).filter(|&i| in_chain[i]).collect();
+        // One fast-summation tree over the free (not chained) particles at this instant serves
+        // the onset flow on the foils; with the chained ones added directly, the shed points and
+        // the convection.
+        let tree = fast::Tree::new(
+            &self.wake.elements_except(&in_chain, self.delta_sq),
+            TREE_THETA,
+            TREE_TOLERANCE,
+        );
+        let chained_velocity = |p: [f64; 2]| {
+            let mut u = [0.0; 2];
+            for &i in &chained {
+                let c = [self.wake.x[i], self.wake.y[i]];
+                let v = fast::gaussian_velocity(c, self.wake.gamma[i], self.delta_sq, p);
+                u[0] += v[0];
+                u[1] += v[1];
+            }
+            u
+        };
+        // Newest shed point behind each trailing edge.
+        let shed_points: Vec<[f64; 2]> = self
+            .bodies
+            .iter()
+            .map(|b| {
+                let te = b.trailing_edge();
+                let uw = tree.velocity(te);
+                let uc = chained_velocity(te);
+                let vte = b.pose.velocity_at(te);
+                let rel = [
+                    u_inf[0] + uw[0] + uc[0] - vte[0],
+                    u_inf[1] + uw[1] + uc[1] - vte[1],
+                ];
+                [
+                    te[0] + SHED_FRACTION * rel[0] * self.dt,
+                    te[1] + SHED_FRACTION * rel[1] * self.dt,
+                ]
+            })
+            .collect();
+        for (b, sp) in self.bodies.iter_mut().zip(shed_points) {
+            b.shed_point = sp;
+        }
         let mut closures: Vec<([f64; 2], f64)> = Vec::with_capacity(self.bodies.len());
         let mut chain_panels: Vec<([f64; 2], [f64; 2], f64)> = Vec::new();
         for (bi, chain) in chains.iter().enumerate() {
             let mut start = self.bodies[bi].shed_point;
             let mut m = -prev_circulation[bi];
             for &i in chain {
-                in_chain[i] = true;
                 let end = [self.wake.x[i], self.wake.y[i]];
                 chain_panels.push((start, end, m));
                 m -= self.wake.gamma[i];
@@ -618,26 +768,31 @@ impl Simulation {
             // The closing vortex carries the rest of the older wake's circulation.
             closures.push((start, -m));
         }
-        let chained: Vec<usize> = (0..self.wake.len()).filter(|&i| in_chain[i]).collect();
-        // Velocity and stream function of the free (not chained) particles at `p`: the tree's
-        // sum over all particles less the chained ones.
-        let free_flow = |p: [f64; 2], wake: &Wake, delta_sq: f64| {
-            let (mut u, mut psi) = tree.eval(p);
-            for &i in &chained {
-                let c = [wake.x[i], wake.y[i]];
-                let v = fast::gaussian_velocity(c, wake.gamma[i], delta_sq, p);
-                u[0] -= v[0];
-                u[1] -= v[1];
-                psi -= fast::gaussian_stream_function(c, wake.gamma[i], delta_sq, p);
+        // Velocity and stream function of the free particles at every node of every foil, and
+        // their velocity at every collocation point, in one pass over all cores.
+        let points: Vec<(bool, [f64; 2])> = self
+            .bodies
+            .iter()
+            .flat_map(|b| {
+                b.nodes
+                    .iter()
+                    .map(|&p| (true, p))
+                    .chain(b.mids.iter().map(|&p| (false, p)))
+            })
+            .collect();
+        let mut flows: std::vec::IntoIter<([f64; 2], f64)> = par_map(points.len(), |k| {
+            let (with_psi, p) = points[k];
+            if with_psi {
+                tree.eval(p)
+            } else {
+                (tree.velocity(p), 0.0)
             }
-            (u, psi)
-        };
+        })
+        .into_iter();
         let mut onset_phi: Vec<Vec<f64>> = Vec::with_capacity(self.bodies.len());
         for b in &mut self.bodies {
             let npan = b.panels();
-            let at_nodes: Vec<([f64; 2], f64)> = par_map(b.nodes.len(), |k| {
-                free_flow(b.nodes[k], &self.wake, self.delta_sq)
-            });
+            let at_nodes: Vec<([f64; 2], f64)> = flows.by_ref().take(b.nodes.len()).collect();
             let psi: Vec<f64> = b
                 .nodes
                 .iter()
@@ -651,17 +806,7 @@ impl Simulation {
                 })
                 .collect();
             let un: Vec<[f64; 2]> = at_nodes.iter().map(|f| f.0).collect();
-            let um: Vec<[f64; 2]> = par_map(b.mids.len(), |k| {
-                let p = b.mids[k];
-                let mut u = tree.velocity(p);
-                for &i in &chained {
-                    let c = [self.wake.x[i], self.wake.y[i]];
-                    let v = fast::gaussian_velocity(c, self.wake.gamma[i], self.delta_sq, p);
-                    u[0] -= v[0];
-                    u[1] -= v[1];
-                }
-                u
-            });
+            let um: Vec<[f64; 2]> = flows.by_ref().take(b.mids.len()).map(|f| f.0).collect();
             let mut phi = vec![0.0; npan];
             let mut acc = 0.0;
             for j in 0..npan {
@@ -759,9 +904,46 @@ impl Simulation {
             self.wake.push(b.shed_point, prev - b.circulation, bi);
         }
         self.impulse.push(self.vortex_impulse());
-        self.convect(t, &tree);
+        self.convect(t, &tree, &chained);
+        if self.merge_ratio > 0.0 {
+            self.merge_far_wake();
+        }
         self.wake.coarsen(self.cap, self.bodies.len());
         self.steps += 1;
+    }
+
+    /// Merges far-wake particles by distance from the foils (at the next instant's poses): two
+    /// consecutive same-sign particles of one foil beyond [`MERGE_CLEAR_CHORDS`] merge when
+    /// they are closer than `numerics.wake_merge` times their distance to the nearest foil's
+    /// chord line. The wake's resolution as seen from the foils stays about the same while the
+    /// particle count stays bounded (a particle's influence on a foil falls off with distance).
+    fn merge_far_wake(&mut self) {
+        let t_next = self.steps as f64 * self.dt + self.dt;
+        let chord = self.bodies.iter().map(|b| b.chord).fold(0.0, f64::max);
+        let lines: Vec<([f64; 2], [f64; 2])> = self
+            .bodies
+            .iter()
+            .map(|b| {
+                let pose = b.motion.pose(t_next);
+                (
+                    pose.to_world([0.0, 0.0], b.chord, b.pivot),
+                    pose.to_world([1.0, 0.0], b.chord, b.pivot),
+                )
+            })
+            .collect();
+        let clear = MERGE_CLEAR_CHORDS * chord;
+        let ratio = self.merge_ratio;
+        self.wake.merge_by_distance(self.bodies.len(), |p| {
+            let d = lines
+                .iter()
+                .map(|&(a, b)| geometry::segment_distance(a, b, p))
+                .fold(f64::INFINITY, f64::min);
+            if d < clear {
+                0.0
+            } else {
+                ratio * d
+            }
+        });
     }
 
     /// Indices of each foil's near-wake particles, newest first: consecutive particles of that foil
@@ -799,88 +981,106 @@ impl Simulation {
         chains
     }
 
-    /// Assembles and solves the Dirichlet system for all doublet strengths at once.
+    /// Solves the Dirichlet system for all doublet strengths at once. Each foil's own block is
+    /// constant in the body frame (its LU factors are kept); the blocks coupling two foils are
+    /// assembled each step.
     fn solve(&mut self) {
         if self.bodies.len() == 1 {
             self.solve_single();
             return;
         }
-        let m: usize = self.bodies.iter().map(|b| b.panels()).sum();
-        // Where each unknown's row lives: (foil, panel).
+        for b in &mut self.bodies {
+            if b.lu.is_none() {
+                b.lu = Some(b.self_doublet.clone().lu());
+            }
+        }
+        let sources: Vec<SourceExpansion> = self.bodies.iter().map(source_expansion).collect();
+        // Rows are independent: assemble them on all cores. Each row holds the doublet
+        // influence of every other foil's panels (trailing-edge panels included) and the
+        // right-hand side.
         let owners: Vec<(usize, usize)> = self
             .bodies
             .iter()
             .enumerate()
             .flat_map(|(bi, b)| (0..b.panels()).map(move |j| (bi, j)))
             .collect();
-        // Rows are independent: assemble them on all cores, then place them.
-        let rows: Vec<(Vec<f64>, f64)> = par_map(m, |row| {
+        let m = owners.len();
+        let rows: Vec<(Vec<f64>, f64, f64)> = par_map(m, |row| {
             let (pi, j) = owners[row];
             let p = &self.bodies[pi];
+            let x = p.mids[j];
             let mut entries = vec![0.0; m];
             let mut rhs = 0.0;
             for (qi, q) in self.bodies.iter().enumerate() {
                 let nq = q.panels();
-                let mut src = 0.0;
                 if pi == qi {
+                    let mut src = 0.0;
                     for k in 0..nq {
-                        entries[q.offset + k] = p.self_doublet[(j, k)];
                         src += p.self_source[(j, k)] * q.sigma[k];
                     }
-                } else {
-                    let x = p.mids[j];
-                    for k in 0..nq {
-                        let (na, nb) = (q.nodes[k], q.nodes[k + 1]);
-                        let mk = q.mids[k];
-                        let l = q.lengths[k];
-                        let r = [x[0] - mk[0], x[1] - mk[1]];
-                        let r2 = r[0] * r[0] + r[1] * r[1];
-                        // Beyond ten panel lengths the midpoint rule (a point doublet and a
-                        // point source) differs from the exact panel by less than
-                        // (l / r)^2 / 12 = 0.08 % of the entry.
-                        let (d, sp) = if r2 > 100.0 * l * l {
-                            let nn = q.normals[k];
-                            (
-                                l / (2.0 * PI) * (r[0] * nn[0] + r[1] * nn[1]) / r2,
-                                l / (4.0 * PI) * r2.dln(),
-                            )
-                        } else {
-                            (
-                                kernels::doublet_potential(na, nb, x),
-                                kernels::source_potential(na, nb, x),
-                            )
-                        };
-                        entries[q.offset + k] = d;
-                        src += sp * q.sigma[k];
-                    }
+                    rhs -= src;
+                    continue;
                 }
-                rhs -= src;
-                if qi == 0 {
-                    for &(ca, cb, mu) in &self.chain_panels {
-                        rhs -= mu * kernels::doublet_potential(ca, cb, p.mids[j]);
-                    }
+                let far_source = sources[qi].potential(x);
+                let mut src = 0.0;
+                for k in 0..nq {
+                    let (na, nb) = (q.nodes[k], q.nodes[k + 1]);
+                    let mk = q.mids[k];
+                    let l = q.lengths[k];
+                    let r = [x[0] - mk[0], x[1] - mk[1]];
+                    let r2 = r[0] * r[0] + r[1] * r[1];
+                    // Beyond ten panel lengths the midpoint rule (a point doublet and a
+                    // point source) differs from the exact panel by less than
+                    // (l / r)^2 / 12 = 0.08 % of the entry.
+                    let d = if r2 > 100.0 * l * l {
+                        let nn = q.normals[k];
+                        if far_source.is_none() {
+                            src += l / (4.0 * PI) * r2.dln() * q.sigma[k];
+                        }
+                        l / (2.0 * PI) * (r[0] * nn[0] + r[1] * nn[1]) / r2
+                    } else {
+                        src += kernels::source_potential(na, nb, x) * q.sigma[k];
+                        kernels::doublet_potential(na, nb, x)
+                    };
+                    entries[q.offset + k] = d;
                 }
+                rhs -= far_source.unwrap_or(0.0) + src;
                 // Trailing-edge doublet panel of q, strength mu_last - mu_first (Kutta).
-                let w = kernels::doublet_potential(q.trailing_edge(), q.shed_point, p.mids[j]);
+                let w = kernels::doublet_potential(q.trailing_edge(), q.shed_point, x);
                 entries[q.offset + nq - 1] += w;
                 entries[q.offset] -= w;
             }
-            (entries, rhs)
-        });
-        let mut a = DMatrix::<f64>::zeros(m, m);
-        let mut rhs = DVector::<f64>::zeros(m);
-        for (row, (entries, r)) in rows.into_iter().enumerate() {
-            for (col, v) in entries.into_iter().enumerate() {
-                a[(row, col)] = v;
+            for &(ca, cb, mu) in &self.chain_panels {
+                rhs -= mu * kernels::doublet_potential(ca, cb, x);
             }
-            rhs[row] = r;
-        }
-        let x = match self.solve_blocks(&a, &rhs) {
+            // This foil's own trailing-edge panel (the rank-one part of its block).
+            let own = kernels::doublet_potential(p.trailing_edge(), p.shed_point, x);
+            (entries, rhs, own)
+        });
+        let x = match self.solve_blocks(&rows) {
             Some(x) => x,
-            None => a
-                .lu()
-                .solve(&rhs)
-                .expect("the panel system is non-singular for separated foils"),
+            None => {
+                // Assemble the whole matrix and factor it.
+                let mut a = DMatrix::<f64>::zeros(m, m);
+                let mut rhs = DVector::<f64>::zeros(m);
+                for (row, (entries, r, own)) in rows.iter().enumerate() {
+                    let (pi, j) = owners[row];
+                    let p = &self.bodies[pi];
+                    let n = p.panels();
+                    for (col, v) in entries.iter().enumerate() {
+                        a[(row, col)] = *v;
+                    }
+                    for k in 0..n {
+                        a[(row, p.offset + k)] = p.self_doublet[(j, k)];
+                    }
+                    a[(row, p.offset + n - 1)] += own;
+                    a[(row, p.offset)] -= own;
+                    rhs[row] = *r;
+                }
+                a.lu()
+                    .solve(&rhs)
+                    .expect("the panel system is non-singular for separated foils")
+            }
         };
         for b in &mut self.bodies {
             let n = b.panels();
@@ -891,30 +1091,24 @@ impl Simulation {
         }
     }
 
-    /// Block Gauss-Seidel on the assembled system, each foil's diagonal block solved with its
-    /// kept LU factors plus the trailing-edge panel by Sherman-Morrison, starting from the
-    /// previous step's solution. Returns `None` unless it converges to round-off (relative change
-    /// below 1e-14) within 200 sweeps; the caller then factors the whole matrix.
-    fn solve_blocks(&mut self, a: &DMatrix<f64>, rhs: &DVector<f64>) -> Option<DVector<f64>> {
-        let m = rhs.len();
+    /// Block Gauss-Seidel on the system whose rows are `rows` (coupling entries, right-hand side,
+    /// own trailing-edge panel), each foil's diagonal block solved with its kept LU factors plus
+    /// the trailing-edge panel by Sherman-Morrison, starting from the previous step's solution.
+    /// Returns `None` unless it converges to round-off (relative change below 1e-14) within 200
+    /// sweeps; the caller then factors the whole matrix.
+    fn solve_blocks(&self, rows: &[(Vec<f64>, f64, f64)]) -> Option<DVector<f64>> {
+        let m = rows.len();
         let mut x = DVector::<f64>::zeros(m);
         let mut lus = Vec::with_capacity(self.bodies.len());
-        for b in &mut self.bodies {
-            if b.lu.is_none() {
-                b.lu = Some(b.self_doublet.clone().lu());
-            }
+        for b in &self.bodies {
             for j in 0..b.panels() {
                 x[b.offset + j] = b.mu[j];
             }
         }
         for b in &self.bodies {
             let n = b.panels();
-            let lu = b.lu.as_ref().expect("factored above");
-            // This foil's own trailing-edge panel column (its rank-one part of the block).
-            let mut w = DVector::<f64>::zeros(n);
-            for j in 0..n {
-                w[j] = a[(b.offset + j, b.offset + n - 1)] - b.self_doublet[(j, n - 1)];
-            }
+            let lu = b.lu.as_ref().expect("factored by solve");
+            let w = DVector::from_iterator(n, (0..n).map(|j| rows[b.offset + j].2));
             let z = lu.solve(&w)?;
             lus.push((lu, z));
         }
@@ -925,12 +1119,14 @@ impl Simulation {
                 let n = b.panels();
                 let mut r = DVector::<f64>::zeros(n);
                 for j in 0..n {
-                    let row = b.offset + j;
-                    let mut acc = rhs[row];
+                    let (entries, rhs, _) = &rows[b.offset + j];
+                    let mut acc = *rhs;
                     for (ci, c) in self.bodies.iter().enumerate() {
                         if ci != bi {
-                            for k in 0..c.panels() {
-                                acc -= a[(row, c.offset + k)] * x[c.offset + k];
+                            let cols = &entries[c.offset..c.offset + c.panels()];
+                            let xs = &x.as_slice()[c.offset..c.offset + c.panels()];
+                            for (e, v) in cols.iter().zip(xs) {
+                                acc -= e * v;
                             }
                         }
                     }
@@ -1124,16 +1320,18 @@ impl Simulation {
 
     /// Moves the wake to the next instant (Adams-Bashforth 2; Euler for a new particle) and puts
     /// back outside any particle that ended inside a foil or within a quarter core of its surface.
-    fn convect(&mut self, t: f64, tree: &fast::Tree) {
+    fn convect(&mut self, t: f64, tree: &fast::Tree, chained: &[usize]) {
         let np = self.wake.len();
         let new_from = np - self.bodies.len();
         let expansions: Vec<BodyExpansion> =
             self.bodies.iter().map(|b| self.body_expansion(b)).collect();
+        // The tree holds the free particles of the start of the step; the chained ones and this
+        // step's new ones are added directly.
+        let direct: Vec<usize> = chained.iter().copied().chain(new_from..np).collect();
         let vel: Vec<[f64; 2]> = par_map(np, |i| {
             let p = [self.wake.x[i], self.wake.y[i]];
-            // The tree holds the particles of the start of the step; add this step's new ones.
             let mut u = tree.velocity(p);
-            for k in new_from..np {
+            for &k in &direct {
                 let v = fast::gaussian_velocity(
                     [self.wake.x[k], self.wake.y[k]],
                     self.wake.gamma[k],

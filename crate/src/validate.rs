@@ -36,6 +36,7 @@
 //! | `numerics.core_size` | 0.005 to 0.5 of the smallest chord | |
 //! | `numerics.max_particles` | 200 to 200000 | |
 //! | `numerics.ramp_cycles` | 0 to 10 and fewer than `cycles` | at least part of one cycle runs at full amplitude |
+//! | `numerics.wake_merge` | 0 to 0.5 of the distance to the nearest foil | above half the distance the wake is too lumpy to follow |
 //! | `numerics.time_step` | frequency 0 only; more than 0, at most one chord of travel of foil 0 | |
 //! | `numerics.duration` | frequency 0 only; at least one time step | |
 //! | all steps of a run | at most 2,000,000 | memory of the load history |
@@ -85,6 +86,8 @@ pub const CYCLES_RANGE: (usize, usize) = (2, 200);
 pub const CORE_SIZE_RANGE: (f64, f64) = (0.005, 0.5);
 /// Smallest and largest wake-particle cap.
 pub const MAX_PARTICLES_RANGE: (usize, usize) = (200, 200_000);
+/// Fraction of the distance to the nearest foil: `numerics.wake_merge`.
+pub const WAKE_MERGE_RANGE: (f64, f64) = (0.0, 0.5);
 /// Cycles. Longest smooth start.
 pub const RAMP_CYCLES_MAX: f64 = 10.0;
 /// Chords of travel of foil 0. Largest distance the stream may move in one time step.
@@ -386,6 +389,13 @@ const NUMERICS_KEYS: &[Key] = &[
         false,
         "a whole number, 200 to 200000",
         "4000",
+    ),
+    key(
+        "wake_merge",
+        Shape::Number,
+        false,
+        "fraction of the distance to the nearest foil, 0 to 0.5",
+        "0.1",
     ),
     key(
         "ramp_cycles",
@@ -945,6 +955,13 @@ fn validate_numerics(case: &Case) -> Result<(), CaseError> {
         MAX_PARTICLES_RANGE,
         "200 to 200000",
         "use a particle cap of a few thousand (4000 is the default)",
+    )?;
+    check_f64(
+        "numerics.wake_merge",
+        num.wake_merge,
+        WAKE_MERGE_RANGE,
+        "0 to 0.5 (fraction of the distance to the nearest foil)",
+        "use 0.1 (the default), or 0 to keep every wake particle",
     )?;
     check_f64(
         "numerics.ramp_cycles",

@@ -119,6 +119,7 @@ pub fn case_limits() -> Result<JsValue, JsValue> {
         "numerics.cycles": count(limits::CYCLES_RANGE),
         "numerics.core_size": pair(limits::CORE_SIZE_RANGE),
         "numerics.max_particles": count(limits::MAX_PARTICLES_RANGE),
+        "numerics.wake_merge": pair(limits::WAKE_MERGE_RANGE),
         "numerics.ramp_cycles": [0.0, limits::RAMP_CYCLES_MAX],
         "foils": [1.0, crate::case::MAX_FOILS as f64],
     });

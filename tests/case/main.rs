@@ -159,6 +159,8 @@ fn bounds_are_inclusive() {
         vec![("/numerics/core_size", json!(0.5))],
         vec![("/numerics/max_particles", json!(200))],
         vec![("/numerics/max_particles", json!(200_000))],
+        vec![("/numerics/wake_merge", json!(0.0))],
+        vec![("/numerics/wake_merge", json!(0.5))],
         vec![("/numerics/ramp_cycles", json!(0.0))],
         vec![
             ("/numerics/ramp_cycles", json!(10.0)),
@@ -618,6 +620,22 @@ fn max_particles_within_range() {
         json!(300_000),
         "numerics.max_particles",
         &["= 300000", "200 to 200000"],
+    );
+}
+
+#[test]
+fn wake_merge_within_range() {
+    reject(
+        "/numerics/wake_merge",
+        json!(-0.1),
+        "numerics.wake_merge",
+        &["= -0.1", "0 to 0.5"],
+    );
+    reject(
+        "/numerics/wake_merge",
+        json!(0.75),
+        "numerics.wake_merge",
+        &["= 0.75", "0 to 0.5"],
     );
 }
 

@@ -198,6 +198,7 @@ fn random_case(rng: &mut Rng) -> Option<Case> {
     num.ramp_cycles = rng.value(0.0, 10.0f64.min(num.cycles as f64).next_down(), 1.0);
     num.core_size = rng.value(0.005, 0.5, 0.05);
     num.max_particles = rng.whole(200, 200_000, 4000);
+    num.wake_merge = rng.value(0.0, 0.5, 0.1);
     let c0 = case.foils[0].chord;
     let chord_time = c0 / case.flow.speed;
     if oscillating {

@@ -267,30 +267,45 @@ fn forces_insensitive_to_blob_core_at_small_amplitude() {
 
 #[test]
 fn coarsening_the_far_wake_leaves_mean_forces_unchanged() {
-    // The default tandem case with its wake uncapped, against a cap that forces the oldest
-    // particles to be merged (circulation and its first moment kept) from the fourth cycle on.
+    // The default tandem case with every particle kept (no merging, no cap) against the two
+    // kinds of wake management: merging by distance from the foils (the default,
+    // numerics.wake_merge = 0.1), and a cap that forces the oldest particles to be merged from
+    // the fourth cycle on. Both keep circulation and its first moment.
     let mut free = tandem();
     free.numerics.max_particles = 200_000;
+    free.numerics.wake_merge = 0.0;
+    let mut merged = tandem();
+    merged.numerics.max_particles = 200_000;
     let mut capped = tandem();
     capped.numerics.max_particles = 600;
-    let (a, b) = (run(&free), run(&capped));
+    capped.numerics.wake_merge = 0.0;
+    let (a, m, b) = (run(&free), run(&merged), run(&capped));
     assert!(
         b.particles <= 600 && a.particles > 600,
         "{} {}",
         a.particles,
         b.particles
     );
-    for i in 0..2 {
-        let (ta, tb) = (a.foils[i].thrust, b.foils[i].thrust);
-        let (pa, pb) = (a.foils[i].power, b.foils[i].power);
-        eprintln!(
-            "coarsening: foil {i} thrust {ta:.5} vs {tb:.5} N ({:+.3} %), power {pa:.5} vs {pb:.5} W ({:+.3} %), particles {} vs {}",
-            100.0 * (tb / ta - 1.0),
-            100.0 * (pb / pa - 1.0),
-            a.particles,
-            b.particles
-        );
-        // 0.5 %: the accuracy asked of wake management (mean forces against an unpruned run).
-        assert!((tb / ta - 1.0).abs() < 0.005 && (pb / pa - 1.0).abs() < 0.005);
+    // Merging bounds the count well below the full wake (1600 particles after 8 cycles).
+    assert!(
+        m.particles < a.particles / 4,
+        "{} {}",
+        m.particles,
+        a.particles
+    );
+    for (label, r) in [("merging", &m), ("cap", &b)] {
+        for i in 0..2 {
+            let (ta, tb) = (a.foils[i].thrust, r.foils[i].thrust);
+            let (pa, pb) = (a.foils[i].power, r.foils[i].power);
+            eprintln!(
+                "{label}: foil {i} thrust {ta:.5} vs {tb:.5} N ({:+.3} %), power {pa:.5} vs {pb:.5} W ({:+.3} %), particles {} vs {}",
+                100.0 * (tb / ta - 1.0),
+                100.0 * (pb / pa - 1.0),
+                a.particles,
+                r.particles
+            );
+            // 0.5 %: the accuracy asked of wake management (mean forces against an unpruned run).
+            assert!((tb / ta - 1.0).abs() < 0.005 && (pb / pa - 1.0).abs() < 0.005);
+        }
     }
 }
