@@ -37,7 +37,7 @@ pub const NEAR_WAKE_CHORDS: f64 = 0.3;
 /// the sequential map, so results do not depend on the number of threads); sequential in wasm,
 /// and sequential when already on a worker of the thread pool (a sweep runs whole simulations
 /// in parallel, and splitting each step's small loops again only adds scheduling).
-fn par_map<T: Send, F: Fn(usize) -> T + Sync + Send>(n: usize, f: F) -> Vec<T> {
+pub(crate) fn par_map<T: Send, F: Fn(usize) -> T + Sync + Send>(n: usize, f: F) -> Vec<T> {
     #[cfg(not(target_arch = "wasm32"))]
     {
         use rayon::prelude::*;
@@ -51,6 +51,47 @@ fn par_map<T: Send, F: Fn(usize) -> T + Sync + Send>(n: usize, f: F) -> Vec<T> {
     {
         (0..n).map(f).collect()
     }
+}
+
+/// Dot product in four independent partial sums (so the loop vectorises).
+fn dot(a: &[f64], b: &[f64]) -> f64 {
+    let mut acc = [0.0; 4];
+    let (ca, cb) = (a.chunks_exact(4), b.chunks_exact(4));
+    let (ra, rb) = (ca.remainder(), cb.remainder());
+    for (x, y) in ca.zip(cb) {
+        for k in 0..4 {
+            acc[k] += x[k] * y[k];
+        }
+    }
+    let mut s = (acc[0] + acc[1]) + (acc[2] + acc[3]);
+    for (x, y) in ra.iter().zip(rb) {
+        s += x * y;
+    }
+    s
+}
+
+/// Calls `f(row, &mut buf[row * width..(row + 1) * width])` for every row of `buf` and collects
+/// what it returns, on all cores like [`par_map`] (and sequentially where it is).
+fn par_rows<T: Send, F: Fn(usize, &mut [f64]) -> T + Sync + Send>(
+    buf: &mut [f64],
+    width: usize,
+    f: F,
+) -> Vec<T> {
+    #[cfg(not(target_arch = "wasm32"))]
+    {
+        use rayon::prelude::*;
+        if !(rayon::current_thread_index().is_some() || rayon::current_num_threads() < 2) {
+            return buf
+                .par_chunks_mut(width)
+                .enumerate()
+                .map(|(i, row)| f(i, row))
+                .collect();
+        }
+    }
+    buf.chunks_mut(width)
+        .enumerate()
+        .map(|(i, row)| f(i, row))
+        .collect()
 }
 
 /// Chords (of the largest foil) from every foil's chord line within which wake particles are
@@ -248,6 +289,10 @@ struct Body {
     self_source: DMatrix<f64>,
     /// LU factors of `self_doublet` (single-foil fast path), made on first use.
     lu: Option<nalgebra::LU<f64, nalgebra::Dyn, nalgebra::Dyn>>,
+    /// Inverse of `self_doublet`, row-major (several foils), made on first use.
+    inverse: Vec<f64>,
+    /// Doublet strengths of the step before the latest (several foils; empty before).
+    mu_prev: Vec<f64>,
     /// m. Arc length from the trailing edge (lower side) to each collocation point.
     arc: Vec<f64>,
     // World geometry at the current instant.
@@ -335,6 +380,8 @@ fn new_body_from_section(
         self_doublet: DMatrix::zeros(n, n),
         self_source: DMatrix::zeros(n, n),
         lu: None,
+        inverse: Vec::new(),
+        mu_prev: Vec::new(),
         arc: vec![0.0; n],
         pose: motion.pose(0.0),
         nodes: vec![[0.0; 2]; n + 1],
@@ -533,6 +580,8 @@ pub struct Simulation {
     impulse: Vec<[f64; 2]>,
     /// Near-wake doublet panels of the current step: start, end (m), strength (m^2/s).
     chain_panels: Vec<([f64; 2], [f64; 2], f64)>,
+    /// Coupling rows of the several-foil system, kept from step to step (see `solve`).
+    coupling: Vec<f64>,
     /// Fraction of the distance to the nearest foil below which neighbouring far-wake particles
     /// are merged (`numerics.wake_merge`; 0 = never).
     merge_ratio: f64,
@@ -591,6 +640,7 @@ impl Simulation {
             impulse: Vec::with_capacity(total_steps),
             chain_panels: Vec::new(),
             merge_ratio: num.wake_merge,
+            coupling: Vec::new(),
         })
     }
 
@@ -770,29 +820,15 @@ impl Simulation {
         }
         // Velocity and stream function of the free particles at every node of every foil, and
         // their velocity at every collocation point, in one pass over all cores.
-        let points: Vec<(bool, [f64; 2])> = self
-            .bodies
-            .iter()
-            .flat_map(|b| {
-                b.nodes
-                    .iter()
-                    .map(|&p| (true, p))
-                    .chain(b.mids.iter().map(|&p| (false, p)))
-            })
-            .collect();
-        let mut flows: std::vec::IntoIter<([f64; 2], f64)> = par_map(points.len(), |k| {
-            let (with_psi, p) = points[k];
-            if with_psi {
-                tree.eval(p)
-            } else {
-                (tree.velocity(p), 0.0)
-            }
-        })
-        .into_iter();
+        let nodes: Vec<[f64; 2]> = self.bodies.iter().flat_map(|b| b.nodes.clone()).collect();
+        let mids: Vec<[f64; 2]> = self.bodies.iter().flat_map(|b| b.mids.clone()).collect();
+        let mut at_all_nodes = tree.eval_points(&nodes, true).into_iter();
+        let mut at_all_mids = tree.eval_points(&mids, false).into_iter();
         let mut onset_phi: Vec<Vec<f64>> = Vec::with_capacity(self.bodies.len());
         for b in &mut self.bodies {
             let npan = b.panels();
-            let at_nodes: Vec<([f64; 2], f64)> = flows.by_ref().take(b.nodes.len()).collect();
+            let at_nodes: Vec<([f64; 2], f64)> =
+                at_all_nodes.by_ref().take(b.nodes.len()).collect();
             let psi: Vec<f64> = b
                 .nodes
                 .iter()
@@ -806,7 +842,11 @@ impl Simulation {
                 })
                 .collect();
             let un: Vec<[f64; 2]> = at_nodes.iter().map(|f| f.0).collect();
-            let um: Vec<[f64; 2]> = flows.by_ref().take(b.mids.len()).map(|f| f.0).collect();
+            let um: Vec<[f64; 2]> = at_all_mids
+                .by_ref()
+                .take(b.mids.len())
+                .map(|f| f.0)
+                .collect();
             let mut phi = vec![0.0; npan];
             let mut acc = 0.0;
             for j in 0..npan {
@@ -990,14 +1030,17 @@ impl Simulation {
             return;
         }
         for b in &mut self.bodies {
-            if b.lu.is_none() {
-                b.lu = Some(b.self_doublet.clone().lu());
+            if b.inverse.is_empty() {
+                let inv = b
+                    .self_doublet
+                    .clone()
+                    .try_inverse()
+                    .expect("a closed foil's doublet block is non-singular");
+                let n = b.panels();
+                b.inverse = (0..n * n).map(|i| inv[(i / n, i % n)]).collect();
             }
         }
         let sources: Vec<SourceExpansion> = self.bodies.iter().map(source_expansion).collect();
-        // Rows are independent: assemble them on all cores. Each row holds the doublet
-        // influence of every other foil's panels (trailing-edge panels included) and the
-        // right-hand side.
         let owners: Vec<(usize, usize)> = self
             .bodies
             .iter()
@@ -1005,11 +1048,16 @@ impl Simulation {
             .flat_map(|(bi, b)| (0..b.panels()).map(move |j| (bi, j)))
             .collect();
         let m = owners.len();
-        let rows: Vec<(Vec<f64>, f64, f64)> = par_map(m, |row| {
+        // Rows are independent: assemble them on all cores into the kept buffer. Row `i` holds
+        // the doublet influence of every other foil's panels on collocation point `i`
+        // (trailing-edge panels included; the columns of its own foil are not used); each row
+        // also gives its right-hand side and its own foil's trailing-edge panel influence.
+        let mut coupling = std::mem::take(&mut self.coupling);
+        coupling.resize(m * m, 0.0);
+        let rows: Vec<(f64, f64)> = par_rows(&mut coupling, m, |row, entries| {
             let (pi, j) = owners[row];
             let p = &self.bodies[pi];
             let x = p.mids[j];
-            let mut entries = vec![0.0; m];
             let mut rhs = 0.0;
             for (qi, q) in self.bodies.iter().enumerate() {
                 let nq = q.panels();
@@ -1055,92 +1103,119 @@ impl Simulation {
             }
             // This foil's own trailing-edge panel (the rank-one part of its block).
             let own = kernels::doublet_potential(p.trailing_edge(), p.shed_point, x);
-            (entries, rhs, own)
+            (rhs, own)
         });
-        let x = match self.solve_blocks(&rows) {
+        let x = match self.solve_blocks(&coupling, &rows) {
             Some(x) => x,
             None => {
                 // Assemble the whole matrix and factor it.
                 let mut a = DMatrix::<f64>::zeros(m, m);
                 let mut rhs = DVector::<f64>::zeros(m);
-                for (row, (entries, r, own)) in rows.iter().enumerate() {
+                for (row, &(r, own)) in rows.iter().enumerate() {
                     let (pi, j) = owners[row];
                     let p = &self.bodies[pi];
                     let n = p.panels();
-                    for (col, v) in entries.iter().enumerate() {
-                        a[(row, col)] = *v;
+                    for col in 0..m {
+                        a[(row, col)] = coupling[row * m + col];
                     }
                     for k in 0..n {
                         a[(row, p.offset + k)] = p.self_doublet[(j, k)];
                     }
                     a[(row, p.offset + n - 1)] += own;
                     a[(row, p.offset)] -= own;
-                    rhs[row] = *r;
+                    rhs[row] = r;
                 }
                 a.lu()
                     .solve(&rhs)
                     .expect("the panel system is non-singular for separated foils")
+                    .iter()
+                    .copied()
+                    .collect()
             }
         };
+        self.coupling = coupling;
         for b in &mut self.bodies {
             let n = b.panels();
-            for j in 0..n {
-                b.mu[j] = x[b.offset + j];
+            if self.steps > 0 {
+                b.mu_prev.clone_from(&b.mu);
             }
+            b.mu.copy_from_slice(&x[b.offset..b.offset + n]);
             b.circulation = b.mu[0] - b.mu[n - 1];
         }
     }
 
-    /// Block Gauss-Seidel on the system whose rows are `rows` (coupling entries, right-hand side,
-    /// own trailing-edge panel), each foil's diagonal block solved with its kept LU factors plus
-    /// the trailing-edge panel by Sherman-Morrison, starting from the previous step's solution.
-    /// Returns `None` unless it converges to round-off (relative change below 1e-14) within 200
-    /// sweeps; the caller then factors the whole matrix.
-    fn solve_blocks(&self, rows: &[(Vec<f64>, f64, f64)]) -> Option<DVector<f64>> {
+    /// Block Gauss-Seidel on the system of the coupling rows `coupling` (row-major, `rows.len()`
+    /// wide) with the right-hand sides and own trailing-edge influences `rows`: each foil's
+    /// diagonal block is solved with its kept inverse plus the trailing-edge panel by
+    /// Sherman-Morrison, starting from the previous step's solution. Returns `None` unless it
+    /// converges to round-off (relative change below 1e-14) within 200 sweeps; the caller then
+    /// factors the whole matrix.
+    fn solve_blocks(&self, coupling: &[f64], rows: &[(f64, f64)]) -> Option<Vec<f64>> {
         let m = rows.len();
-        let mut x = DVector::<f64>::zeros(m);
-        let mut lus = Vec::with_capacity(self.bodies.len());
+        // Start from the previous two steps' solutions extrapolated linearly (the previous one
+        // alone at the first steps).
+        let mut x = vec![0.0; m];
         for b in &self.bodies {
-            for j in 0..b.panels() {
-                x[b.offset + j] = b.mu[j];
+            let o = b.offset;
+            if b.mu_prev.len() == b.mu.len() {
+                for j in 0..b.panels() {
+                    x[o + j] = 2.0 * b.mu[j] - b.mu_prev[j];
+                }
+            } else {
+                x[o..o + b.panels()].copy_from_slice(&b.mu);
             }
         }
-        for b in &self.bodies {
-            let n = b.panels();
-            let lu = b.lu.as_ref().expect("factored by solve");
-            let w = DVector::from_iterator(n, (0..n).map(|j| rows[b.offset + j].2));
-            let z = lu.solve(&w)?;
-            lus.push((lu, z));
-        }
+        let apply = |inv: &[f64], v: &[f64], out: &mut [f64]| {
+            let n = v.len();
+            for (j, o) in out.iter_mut().enumerate() {
+                *o = dot(&inv[j * n..(j + 1) * n], v);
+            }
+        };
+        // Each foil's inverse applied to its own trailing-edge column.
+        let zs: Vec<Vec<f64>> = self
+            .bodies
+            .iter()
+            .map(|b| {
+                let n = b.panels();
+                let w: Vec<f64> = rows[b.offset..b.offset + n].iter().map(|r| r.1).collect();
+                let mut z = vec![0.0; n];
+                apply(&b.inverse, &w, &mut z);
+                z
+            })
+            .collect();
+        let nmax = self.bodies.iter().map(|b| b.panels()).max().unwrap_or(0);
+        let mut r = vec![0.0; nmax];
+        let mut y = vec![0.0; nmax];
         for _sweep in 0..200 {
             let mut change: f64 = 0.0;
             let mut size: f64 = 0.0;
             for (bi, b) in self.bodies.iter().enumerate() {
                 let n = b.panels();
-                let mut r = DVector::<f64>::zeros(n);
                 for j in 0..n {
-                    let (entries, rhs, _) = &rows[b.offset + j];
-                    let mut acc = *rhs;
+                    let row = b.offset + j;
+                    let entries = &coupling[row * m..(row + 1) * m];
+                    let mut acc = rows[row].0;
                     for (ci, c) in self.bodies.iter().enumerate() {
                         if ci != bi {
-                            let cols = &entries[c.offset..c.offset + c.panels()];
-                            let xs = &x.as_slice()[c.offset..c.offset + c.panels()];
-                            for (e, v) in cols.iter().zip(xs) {
-                                acc -= e * v;
-                            }
+                            let span = c.offset..c.offset + c.panels();
+                            acc -= dot(&entries[span.clone()], &x[span]);
                         }
                     }
                     r[j] = acc;
                 }
-                let (lu, z) = &lus[bi];
-                let y = lu.solve(&r)?;
+                apply(&b.inverse, &r[..n], &mut y[..n]);
+                let z = &zs[bi];
                 let vz = z[n - 1] - z[0];
                 let vy = y[n - 1] - y[0];
-                let xi = y - z * (vy / (1.0 + vz));
+                let k = vy / (1.0 + vz);
                 for j in 0..n {
-                    change = change.max((xi[j] - x[b.offset + j]).abs());
-                    size = size.max(xi[j].abs());
-                    x[b.offset + j] = xi[j];
+                    let xi = y[j] - z[j] * k;
+                    if !xi.is_finite() {
+                        return None;
+                    }
+                    change = change.max((xi - x[b.offset + j]).abs());
+                    size = size.max(xi.abs());
+                    x[b.offset + j] = xi;
                 }
             }
             if change <= 1e-14 * size {
@@ -1268,6 +1343,7 @@ impl Simulation {
             .fold(0.0, f64::max);
         let cc = Complex::new(c[0], c[1]);
         let mut m = vec![Complex::new(0.0, 0.0); order + 1];
+        let reciprocals: Vec<f64> = (0..=order).map(|i| 1.0 / (i as f64 + 1.0)).collect();
         let mut core: f64 = 0.0;
         for k in k0.max(1)..k1 {
             let s = Complex::new(0.0, -(b.mu[k - 1] - b.mu[k]) / (2.0 * PI));
@@ -1282,11 +1358,12 @@ impl Simulation {
         for k in k0..k1 {
             let za = Complex::new(b.nodes[k][0], b.nodes[k][1]) - cc;
             let zb = Complex::new(b.nodes[k + 1][0], b.nodes[k + 1][1]) - cc;
-            let e = Complex::new(b.tangents[k][0], b.tangents[k][1]);
+            // 1 / e for the unit tangent e is its conjugate.
             let s = b.sigma[k] / (2.0 * PI);
+            let e_inv_s = Complex::new(b.tangents[k][0] * s, -b.tangents[k][1] * s);
             let (mut pa, mut pb) = (za, zb);
-            for (i, mm) in m.iter_mut().enumerate() {
-                *mm += (pb - pa) / (e * (i as f64 + 1.0)) * s;
+            for (mm, inv) in m.iter_mut().zip(&reciprocals) {
+                *mm += (pb - pa) * e_inv_s * *inv;
                 pa *= za;
                 pb *= zb;
             }
@@ -1328,9 +1405,11 @@ impl Simulation {
         // The tree holds the free particles of the start of the step; the chained ones and this
         // step's new ones are added directly.
         let direct: Vec<usize> = chained.iter().copied().chain(new_from..np).collect();
+        let positions: Vec<[f64; 2]> = (0..np).map(|i| [self.wake.x[i], self.wake.y[i]]).collect();
+        let from_tree = tree.eval_points(&positions, false);
         let vel: Vec<[f64; 2]> = par_map(np, |i| {
-            let p = [self.wake.x[i], self.wake.y[i]];
-            let mut u = tree.velocity(p);
+            let p = positions[i];
+            let mut u = from_tree[i].0;
             for &k in &direct {
                 let v = fast::gaussian_velocity(
                     [self.wake.x[k], self.wake.y[k]],
