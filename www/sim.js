@@ -11,17 +11,26 @@ import init, {
 } from "./pkg/finwake.js";
 
 let ready = null;
+let wasmMemory = null; // the module's linear memory, once loaded
 
 /** Loads and instantiates the wasm module once; resolves to the module's static facts. */
 export function loadSolver() {
   if (!ready) {
-    ready = init().then(() => ({
+    ready = init().then((exports) => {
+      wasmMemory = exports?.memory ?? null;
+      return {
       loadFields: loadFields(),
       loadStride: loadStride(),
       limits: caseLimits(),
-    }));
+      };
+    });
   }
   return ready;
+}
+
+/** Bytes of WebAssembly memory the solver holds in this thread (0 before it loads). */
+export function solverMemoryBytes() {
+  return wasmMemory ? wasmMemory.buffer.byteLength : 0;
 }
 
 /** Derived numbers of a case (array per foil); throws the crate's CaseError for a bad case. */

@@ -1,6 +1,6 @@
 // The solver worker: runs one simulation (role "main") or the single-foil reference run
 // (role "reference") off the page's thread. Messages are documented in solver-client.js.
-import { loadSolver, derived, SolverRun, rigCheckReport } from "./sim.js";
+import { loadSolver, derived, SolverRun, rigCheckReport, solverMemoryBytes } from "./sim.js";
 
 let run = null; // the active SolverRun
 let token = 0; // the active run's token
@@ -98,7 +98,7 @@ function advance(msg) {
   post(
     {
       type: "frame", token, steps: taken, stepMs, stepsTaken: after, time: run.time,
-      finished: run.finished, records, particles, outlines, summary,
+      finished: run.finished, records, particles, outlines, summary, memoryBytes: solverMemoryBytes(),
     },
     [records.buffer, particles.buffer, ...outlines.map((o) => o.buffer)],
   );

@@ -1,10 +1,14 @@
 // Benchmark helper for `cargo xtask bench`: opens the built site in headless Chromium and prints
-// one JSON line with the page's own solver steps per second and frame rate (read from its status
-// readouts once a second, median of the readings taken while the run was going, at the fastest
-// speed) and the JS heap:
-// * `default`: the default case (its wake stays near 1,600 particles);
-// * `wake_4000`: the default tandem run for 30 cycles through a link, measured once the wake has
-//   reached the 4,000-particle cap, with the heap read at the start and end of that window.
+// one JSON line with the page's own solver steps per second (per second of the worker's computing,
+// and per second of wall time) and frame rate (read from its status readouts once a second, median
+// of the readings taken while the run was going, at the fastest speed) and the memory:
+// * `default`: the default case (far-wake merging keeps its wake near 230 particles);
+// * `wake_4000`: the default tandem run for 30 cycles with far-wake merging off (`merge=0`)
+//   through a link, measured once the wake has reached the 4,000-particle cap;
+// * `long_run`: the default tandem case for 200 cycles (20,000 steps), memory read after a
+//   garbage collection at the start and the end of a long window: the page's JS heap and the
+//   solver worker's WebAssembly memory (`body[data-solver-memory]`, bytes).
+// Heap figures are read after a forced garbage collection (DevTools protocol).
 import { serve, browser, openReady } from "../browser/harness.mjs";
 
 async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
@@ -17,15 +21,23 @@ async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
       { timeout: 120000 },
     );
   }
-  const heap = () => page.evaluate(() => (performance.memory ? performance.memory.usedJSHeapSize / 1e6 : null));
+  const cdp = await page.context().newCDPSession(page);
+  const heap = async () => {
+    await cdp.send("HeapProfiler.collectGarbage");
+    return page.evaluate(() => (performance.memory ? performance.memory.usedJSHeapSize / 1e6 : null));
+  };
+  const solverMb = () => page.evaluate(() => Number(document.body.dataset.solverMemory ?? NaN) / 1e6);
+  const solverStart = await solverMb();
   const heapStart = await heap();
   const sps = [];
+  const wall = [];
   const fps = [];
   let particles = 0;
   for (let i = 0; i < seconds; i++) {
     await page.waitForTimeout(1000);
     if ((await page.getAttribute("body", "data-run-state")) === "finished") break;
     sps.push(await stat("steps_per_second"));
+    wall.push(Number(await page.getAttribute('[data-stat="steps_per_second"]', "data-wall")));
     fps.push(await stat("frame_rate"));
     particles = await stat("particles");
   }
@@ -33,7 +45,11 @@ async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
     const s = v.filter(Number.isFinite).sort((a, b) => a - b);
     return s.length ? s[Math.floor(s.length / 2)] : null;
   };
-  return { steps_per_second: median(sps), frame_rate: median(fps), samples: sps.length, particles, heap_mb_start: heapStart, heap_mb_end: await heap() };
+  const stepsEnd = await stat("step");
+  return {
+    steps_per_second: median(sps), wall_steps_per_second: median(wall), frame_rate: median(fps), samples: sps.length, particles, steps: stepsEnd,
+    heap_mb_start: heapStart, heap_mb_end: await heap(), solver_mb_start: solverStart, solver_mb_end: await solverMb(),
+  };
 }
 
 const server = await serve();
@@ -41,10 +57,14 @@ const b = await browser();
 try {
   await openReady(b.page, server.origin);
   const first = await measure(b.page);
-  await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=30`);
+  await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=30;merge=0`);
   await b.page.waitForSelector("body[data-ready]", { timeout: 60000 });
   const wake = await measure(b.page, { minParticles: 4000, seconds: 10 });
-  console.log(JSON.stringify({ steps_per_second: first.steps_per_second, frame_rate: first.frame_rate, default: first, wake_4000: wake }));
+  await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=200`);
+  await b.page.waitForSelector("body[data-ready]", { timeout: 60000 });
+  await b.page.waitForTimeout(3000);
+  const long = await measure(b.page, { seconds: 40 });
+  console.log(JSON.stringify({ steps_per_second: first.steps_per_second, frame_rate: first.frame_rate, default: first, wake_4000: wake, long_run: long }));
 } finally {
   await b.close();
   await server.close();

@@ -2,7 +2,8 @@
 //! `${CARGO_TARGET_DIR:-target}/bench/summary.json` with `fast_vs_direct` (speed-up and largest
 //! error of the fast summation at 1e3, 1e4, 1e5 blobs), `tandem_10_cycles_native_s`,
 //! `wasm_over_native` (the same run in the wasm build under node), `page_steps_per_second`
-//! (default case in headless Chromium) and `sweep_12x12_cli_s`. Figures, not pass/fail: the
+//! (default case in headless Chromium), `sweep_12x12_cli_s` and `map_12x12_page_s` (the same
+//! grid as a map in the page). Figures, not pass/fail: the
 //! targets are printed beside them.
 
 use std::process::Command;
@@ -102,6 +103,18 @@ pub fn bench() -> Result<()> {
     println!("page: {page}");
     let page_sps = number_after(&page, "\"steps_per_second\":").unwrap_or(f64::NAN);
 
+    println!("==> 12 x 12 spacing-phase map in the page (Web Workers, live run paused)");
+    let page_map = capture(
+        tools::command("node")
+            .arg("tests/bench/page-map.mjs")
+            .current_dir(&root)
+            .env("FINWAKE_SITE", &site_dir)
+            .env("FINWAKE_CHROMIUM", &chromium),
+    )?;
+    let page_map = page_map.lines().last().unwrap_or("{}").to_string();
+    println!("page map: {page_map}");
+    let page_map_s = number_after(&page_map, "\"seconds\":").unwrap_or(f64::NAN);
+
     println!("==> 12 x 12 spacing-phase map from the command line (all cores)");
     let sweep_s = timed(
         Command::new(&cli).args([
@@ -121,7 +134,7 @@ pub fn bench() -> Result<()> {
 
     let ratio = wasm_s / native_s;
     let summary = format!(
-        "{{\n  \"fast_vs_direct\": {fast_json},\n  \"tandem_10_cycles_native_s\": {native_s:.4},\n  \"wasm_over_native\": {ratio:.3},\n  \"page_steps_per_second\": {page_sps:.1},\n  \"page\": {page},\n  \"sweep_12x12_cli_s\": {sweep_s:.2}\n}}\n"
+        "{{\n  \"fast_vs_direct\": {fast_json},\n  \"tandem_10_cycles_native_s\": {native_s:.4},\n  \"wasm_over_native\": {ratio:.3},\n  \"page_steps_per_second\": {page_sps:.1},\n  \"page\": {page},\n  \"sweep_12x12_cli_s\": {sweep_s:.2},\n  \"map_12x12_page_s\": {page_map_s:.2},\n  \"page_map\": {page_map}\n}}\n"
     );
     let path = out_dir.join("summary.json");
     std::fs::write(&path, &summary).map_err(|e| e.to_string())?;
@@ -139,6 +152,10 @@ pub fn bench() -> Result<()> {
     println!(
         "{:<34} {:>12.1} {:>16}",
         "sweep 12 x 12 CLI (s)", sweep_s, "<= 30"
+    );
+    println!(
+        "{:<34} {:>12.1} {:>16}",
+        "map 12 x 12 page (s)", page_map_s, "<= 60"
     );
     println!("fast vs direct: {fast_json} (target at 1e5: speedup >= 30, error <= 1e-6)");
     println!("wrote {}", path.display());
