@@ -6,6 +6,27 @@
 //! reproduces native step results bit for bit. `sqrt` and the basic operations are exactly
 //! rounded by IEEE 754 everywhere and need no wrapper.
 
+/// The larger of two numbers (for finite numbers the same as `f64::max`, which compiles to a
+/// function call on wasm32 because of its NaN rules; this is one comparison everywhere).
+#[inline(always)]
+pub fn larger(a: f64, b: f64) -> f64 {
+    if a > b {
+        a
+    } else {
+        b
+    }
+}
+
+/// The smaller of two numbers (see [`larger`]).
+#[inline(always)]
+pub fn smaller(a: f64, b: f64) -> f64 {
+    if a < b {
+        a
+    } else {
+        b
+    }
+}
+
 /// Portable transcendental functions, as methods so call sites read like `f64`'s own.
 pub trait DetMath {
     /// Natural logarithm.

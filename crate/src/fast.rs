@@ -14,7 +14,7 @@
 //! relative, so with the opening ratio `theta` the order is `p = ln(tol) / ln(theta)`.
 //! Data is stored as structures of arrays so the direct loops vectorise.
 
-use crate::detmath::DetMath;
+use crate::detmath::{larger, smaller, DetMath};
 use nalgebra::Complex;
 use std::f64::consts::PI;
 
@@ -253,6 +253,8 @@ struct Cell {
 pub struct Tree {
     xs: Vec<f64>,
     ys: Vec<f64>,
+    /// Position of each stored element in the elements given to [`Tree::new`].
+    index: Vec<usize>,
     gs: Vec<f64>,
     qs: Vec<f64>,
     d2s: Vec<f64>,
@@ -286,6 +288,7 @@ impl Tree {
         let mut tree = Tree {
             xs: pick(&elements.x),
             ys: pick(&elements.y),
+            index: idx.clone(),
             gs: pick(&elements.gamma),
             qs: pick(&elements.source),
             d2s: pick(&elements.delta_sq),
@@ -508,6 +511,45 @@ impl Tree {
         out
     }
 
+    /// [`Tree::eval_points`] for points that come in order along a curve (a foil's outline):
+    /// consecutive runs of points form the leaves, so no target tree is sorted.
+    pub fn eval_along(&self, points: &[[f64; 2]], with_psi: bool) -> Vec<([f64; 2], f64)> {
+        if points.is_empty() || self.cells.is_empty() {
+            return vec![([0.0, 0.0], 0.0); points.len()];
+        }
+        let groups: Vec<&[[f64; 2]]> = points.chunks(TARGET_LEAF).collect();
+        let per_leaf = crate::sim::par_map(groups.len(), |g| {
+            let pts = groups[g];
+            let leaf = enclosing(pts);
+            if with_psi {
+                self.leaf_eval::<true>(&leaf, pts)
+            } else {
+                self.leaf_eval::<false>(&leaf, pts)
+            }
+        });
+        per_leaf.into_iter().flatten().collect()
+    }
+
+    /// m/s. Velocity at each of the tree's own elements, in the order they were given (the
+    /// tree's leaves are the target leaves).
+    pub fn velocity_at_elements(&self) -> Vec<[f64; 2]> {
+        let leaves: Vec<&Cell> = self.cells.iter().filter(|c| c.children.is_none()).collect();
+        let per_leaf = crate::sim::par_map(leaves.len(), |li| {
+            let leaf = leaves[li];
+            let pts: Vec<[f64; 2]> = (leaf.start..leaf.end)
+                .map(|k| [self.xs[k], self.ys[k]])
+                .collect();
+            self.leaf_eval::<false>(leaf, &pts)
+        });
+        let mut out = vec![[0.0, 0.0]; self.xs.len()];
+        for (leaf, vals) in leaves.iter().zip(per_leaf) {
+            for (k, v) in (leaf.start..leaf.end).zip(vals) {
+                out[self.index[k]] = v.0;
+            }
+        }
+        out
+    }
+
     /// The points `pts` of one target leaf (centre and radius of `leaf`): far cells through a
     /// local expansion, near leaves directly.
     fn leaf_eval<const PSI: bool>(&self, leaf: &Cell, pts: &[[f64; 2]]) -> Vec<([f64; 2], f64)> {
@@ -521,6 +563,8 @@ impl Tree {
         stack[0] = 0;
         let mut tpow = vec![C64::new(0.0, 0.0); size + 1];
         let mut u = vec![C64::new(0.0, 0.0); size];
+        // Highest local coefficient any far cell has filled.
+        let mut filled = 0usize;
         while top > 0 {
             top -= 1;
             let ci = stack[top];
@@ -533,27 +577,35 @@ impl Tree {
             let dist = (d.re * d.re + d.im * d.im).sqrt();
             let reach = leaf.radius + cell.radius;
             if reach < self.theta * dist && dist - reach > CORE_CUT * cell.core {
-                let ratio = reach / dist;
-                let p = self
-                    .thresholds
-                    .iter()
-                    .position(|&th| ratio <= th)
-                    .map_or(self.order, |k| k + 1);
+                // Two truncations, each to the tolerance: the cell's multipole series (its
+                // radius over its distance from the nearest point of the leaf) and the leaf's
+                // Taylor series (the leaf's radius over its distance from the nearest point of
+                // the cell); each ratio is below theta.
+                let order_for = |ratio: f64| {
+                    self.thresholds
+                        .iter()
+                        .position(|&th| ratio <= th)
+                        .map_or(self.order, |k| k + 1)
+                };
+                let pm = order_for(cell.radius / (dist - leaf.radius));
+                let pl = order_for(leaf.radius / (dist - cell.radius));
                 let a = &self.moments[ci * (self.order + 1)..(ci + 1) * (self.order + 1)];
                 let t = C64::new(1.0, 0.0) / d;
                 // u_n = a_n t^n / n (n >= 1); tpow[l] = t^l.
                 tpow[0] = C64::new(1.0, 0.0);
-                for l in 1..=p + 1 {
+                for l in 1..=pm.max(pl + 1) {
                     tpow[l] = tpow[l - 1] * t;
                 }
-                for nn in 1..=p {
+                for nn in 1..=pm {
                     u[nn] = a[nn] * tpow[nn] * self.inverse[nn];
                 }
+                let p = pm;
+                filled = filled.max(pl + 1);
                 // c_l = (-1)^(l+1) t^l [a_0 / l + sum_n C(n+l-1, l) u_n]   (l >= 1)
-                for l in 1..=p + 1 {
+                for l in 1..=pl + 1 {
                     let mut acc = a[0] * self.inverse[l];
                     let row = &self.binom_shift[l * (self.order + 1)..(l + 1) * (self.order + 1)];
-                    for nn in 1..=p {
+                    for nn in 1..=pm {
                         acc += u[nn] * row[nn];
                     }
                     let term = acc * tpow[l];
@@ -587,7 +639,7 @@ impl Tree {
                 let z = C64::new(p[0] - leaf.centre[0], p[1] - leaf.centre[1]);
                 // w = sum_l l c_l zeta^(l-1); psi = Im sum_l c_l zeta^l.
                 let mut w = C64::new(0.0, 0.0);
-                for l in (1..size).rev() {
+                for l in (1..=filled).rev() {
                     w = w * z + local[l] * (l as f64);
                 }
                 let mut uu = w.re;
@@ -595,7 +647,7 @@ impl Tree {
                 let mut psi = 0.0;
                 if PSI {
                     let mut f = C64::new(0.0, 0.0);
-                    for l in (1..size).rev() {
+                    for l in (1..=filled).rev() {
                         f = (f + local[l]) * z;
                     }
                     psi = local[0].im + f.im;
@@ -612,6 +664,28 @@ impl Tree {
                 ([uu, vv], psi)
             })
             .collect()
+    }
+}
+
+/// A leaf cell around `pts`: the centre of their bounding box and the largest distance from it.
+fn enclosing(pts: &[[f64; 2]]) -> Cell {
+    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+    for p in pts {
+        lo = [smaller(lo[0], p[0]), smaller(lo[1], p[1])];
+        hi = [larger(hi[0], p[0]), larger(hi[1], p[1])];
+    }
+    let centre = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
+    let radius = pts
+        .iter()
+        .map(|p| ((p[0] - centre[0]).powi(2) + (p[1] - centre[1]).powi(2)).sqrt())
+        .fold(0.0, larger);
+    Cell {
+        start: 0,
+        end: pts.len(),
+        centre,
+        radius,
+        core: 0.0,
+        children: None,
     }
 }
 
@@ -638,15 +712,15 @@ fn build_with(
     let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
     let mut core: f64 = 0.0;
     for &i in slice.iter() {
-        lo = [lo[0].min(el.x[i]), lo[1].min(el.y[i])];
-        hi = [hi[0].max(el.x[i]), hi[1].max(el.y[i])];
-        core = core.max(el.delta_sq[i]);
+        lo = [smaller(lo[0], el.x[i]), smaller(lo[1], el.y[i])];
+        hi = [larger(hi[0], el.x[i]), larger(hi[1], el.y[i])];
+        core = larger(core, el.delta_sq[i]);
     }
     let centre = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
     let radius = slice
         .iter()
         .map(|&i| ((el.x[i] - centre[0]).powi(2) + (el.y[i] - centre[1]).powi(2)).sqrt())
-        .fold(0.0, f64::max);
+        .fold(0.0, larger);
     let me = cells.len();
     cells.push(Cell {
         start,

@@ -10,7 +10,7 @@
 //! second-order Adams-Bashforth scheme. Pressures come from the unsteady Bernoulli equation with
 //! the surface potential differentiated in time by second-order backward differences.
 
-use crate::detmath::DetMath;
+use crate::detmath::{larger, smaller, DetMath};
 use nalgebra::{Complex, DMatrix, DVector};
 use std::f64::consts::PI;
 
@@ -820,10 +820,19 @@ impl Simulation {
         }
         // Velocity and stream function of the free particles at every node of every foil, and
         // their velocity at every collocation point, in one pass over all cores.
-        let nodes: Vec<[f64; 2]> = self.bodies.iter().flat_map(|b| b.nodes.clone()).collect();
-        let mids: Vec<[f64; 2]> = self.bodies.iter().flat_map(|b| b.mids.clone()).collect();
-        let mut at_all_nodes = tree.eval_points(&nodes, true).into_iter();
-        let mut at_all_mids = tree.eval_points(&mids, false).into_iter();
+        // (Each foil's nodes and collocation points come in order along its outline.)
+        let mut at_all_nodes = self
+            .bodies
+            .iter()
+            .flat_map(|b| tree.eval_along(&b.nodes, true))
+            .collect::<Vec<_>>()
+            .into_iter();
+        let mut at_all_mids = self
+            .bodies
+            .iter()
+            .flat_map(|b| tree.eval_along(&b.mids, false))
+            .collect::<Vec<_>>()
+            .into_iter();
         let mut onset_phi: Vec<Vec<f64>> = Vec::with_capacity(self.bodies.len());
         for b in &mut self.bodies {
             let npan = b.panels();
@@ -944,7 +953,7 @@ impl Simulation {
             self.wake.push(b.shed_point, prev - b.circulation, bi);
         }
         self.impulse.push(self.vortex_impulse());
-        self.convect(t, &tree, &chained);
+        self.convect(t, &tree, &chained, &in_chain);
         if self.merge_ratio > 0.0 {
             self.merge_far_wake();
         }
@@ -1041,6 +1050,12 @@ impl Simulation {
             }
         }
         let sources: Vec<SourceExpansion> = self.bodies.iter().map(source_expansion).collect();
+        // Each foil's own sources at its own collocation points (a constant matrix times sigma).
+        let own_sources: Vec<DVector<f64>> = self
+            .bodies
+            .iter()
+            .map(|b| &b.self_source * DVector::from_column_slice(&b.sigma))
+            .collect();
         let owners: Vec<(usize, usize)> = self
             .bodies
             .iter()
@@ -1062,11 +1077,7 @@ impl Simulation {
             for (qi, q) in self.bodies.iter().enumerate() {
                 let nq = q.panels();
                 if pi == qi {
-                    let mut src = 0.0;
-                    for k in 0..nq {
-                        src += p.self_source[(j, k)] * q.sigma[k];
-                    }
-                    rhs -= src;
+                    rhs -= own_sources[pi][j];
                     continue;
                 }
                 let far_source = sources[qi].potential(x);
@@ -1213,8 +1224,8 @@ impl Simulation {
                     if !xi.is_finite() {
                         return None;
                     }
-                    change = change.max((xi - x[b.offset + j]).abs());
-                    size = size.max(xi.abs());
+                    change = larger(change, (xi - x[b.offset + j]).abs());
+                    size = larger(size, xi.abs());
                     x[b.offset + j] = xi;
                 }
             }
@@ -1300,8 +1311,8 @@ impl Simulation {
         let mut u = [0.0; 2];
         for k in k0.max(1)..k1 {
             let g = b.mu[k - 1] - b.mu[k];
-            let core = b.lengths[k - 1].max(b.lengths[k]);
-            let d2 = (core * core).min(self.delta_sq);
+            let core = larger(b.lengths[k - 1], b.lengths[k]);
+            let d2 = smaller(core * core, self.delta_sq);
             let v = fast::gaussian_velocity(b.nodes[k], g, d2, p);
             u[0] += v[0];
             u[1] += v[1];
@@ -1333,14 +1344,14 @@ impl Simulation {
         let order = ((TREE_TOLERANCE.dln() / TREE_THETA.dln()).ceil() as usize).max(1);
         let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
         for p in &b.nodes[k0..=k1] {
-            lo = [lo[0].min(p[0]), lo[1].min(p[1])];
-            hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+            lo = [smaller(lo[0], p[0]), smaller(lo[1], p[1])];
+            hi = [larger(hi[0], p[0]), larger(hi[1], p[1])];
         }
         let c = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
         let radius = b.nodes[k0..=k1]
             .iter()
             .map(|p| ((p[0] - c[0]).powi(2) + (p[1] - c[1]).powi(2)).sqrt())
-            .fold(0.0, f64::max);
+            .fold(0.0, larger);
         let cc = Complex::new(c[0], c[1]);
         let mut m = vec![Complex::new(0.0, 0.0); order + 1];
         let reciprocals: Vec<f64> = (0..=order).map(|i| 1.0 / (i as f64 + 1.0)).collect();
@@ -1353,7 +1364,7 @@ impl Simulation {
                 *mm += pw;
                 pw *= xi;
             }
-            core = core.max(b.lengths[k - 1].max(b.lengths[k]));
+            core = larger(core, larger(b.lengths[k - 1], b.lengths[k]));
         }
         for k in k0..k1 {
             let za = Complex::new(b.nodes[k][0], b.nodes[k][1]) - cc;
@@ -1397,19 +1408,28 @@ impl Simulation {
 
     /// Moves the wake to the next instant (Adams-Bashforth 2; Euler for a new particle) and puts
     /// back outside any particle that ended inside a foil or within a quarter core of its surface.
-    fn convect(&mut self, t: f64, tree: &fast::Tree, chained: &[usize]) {
+    fn convect(&mut self, t: f64, tree: &fast::Tree, chained: &[usize], in_chain: &[bool]) {
         let np = self.wake.len();
         let new_from = np - self.bodies.len();
         let expansions: Vec<BodyExpansion> =
             self.bodies.iter().map(|b| self.body_expansion(b)).collect();
-        // The tree holds the free particles of the start of the step; the chained ones and this
-        // step's new ones are added directly.
+        // The tree holds the free particles of the start of the step (in index order; they have
+        // not moved since) and gives their velocity with its own leaves as targets; the chained
+        // ones and this step's new ones are added directly, and evaluated one by one.
         let direct: Vec<usize> = chained.iter().copied().chain(new_from..np).collect();
-        let positions: Vec<[f64; 2]> = (0..np).map(|i| [self.wake.x[i], self.wake.y[i]]).collect();
-        let from_tree = tree.eval_points(&positions, false);
+        let mut at_free = tree.velocity_at_elements().into_iter();
+        let from_tree: Vec<[f64; 2]> = (0..np)
+            .map(|i| {
+                if i < new_from && !in_chain[i] {
+                    at_free.next().expect("one tree element per free particle")
+                } else {
+                    tree.velocity([self.wake.x[i], self.wake.y[i]])
+                }
+            })
+            .collect();
         let vel: Vec<[f64; 2]> = par_map(np, |i| {
-            let p = positions[i];
-            let mut u = from_tree[i].0;
+            let p = [self.wake.x[i], self.wake.y[i]];
+            let mut u = from_tree[i];
             for &k in &direct {
                 let v = fast::gaussian_velocity(
                     [self.wake.x[k], self.wake.y[k]],
@@ -1470,8 +1490,8 @@ fn bounding_box(pts: &[[f64; 2]], margin: f64) -> ([f64; 2], [f64; 2]) {
     let mut lo = [f64::INFINITY; 2];
     let mut hi = [f64::NEG_INFINITY; 2];
     for p in pts {
-        lo = [lo[0].min(p[0]), lo[1].min(p[1])];
-        hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+        lo = [smaller(lo[0], p[0]), smaller(lo[1], p[1])];
+        hi = [larger(hi[0], p[0]), larger(hi[1], p[1])];
     }
     (
         [lo[0] - margin, lo[1] - margin],
