@@ -20,8 +20,13 @@ use std::f64::consts::PI;
 
 type C64 = Complex<f64>;
 
-/// Cores beyond which a Gaussian blob equals a point vortex to round-off (exp(-36) = 2e-16).
-const CORE_CUT: f64 = 6.0;
+/// Distance in cores beyond which a Gaussian blob acts as a point vortex to relative accuracy
+/// `tolerance`: its velocity differs by the factor `exp(-r^2 / delta^2)` and its stream function
+/// by `E1(r^2 / delta^2) < exp(-r^2 / delta^2)`, so the cut is `sqrt(ln(1 / tolerance))`
+/// (3.7 cores for 1e-6). A far cell's blobs must all be that far from the point (or leaf).
+pub fn point_vortex_cut(tolerance: f64) -> f64 {
+    (-tolerance.dln()).sqrt()
+}
 /// Elements per leaf cell.
 const LEAF: usize = 24;
 /// Points per leaf of the target tree of [`Tree::eval_points`].
@@ -263,6 +268,8 @@ pub struct Tree {
     moments: Vec<C64>,
     order: usize,
     theta: f64,
+    /// Cores from a far cell's blobs to the point ([`point_vortex_cut`] of the tolerance).
+    core_cut: f64,
     /// `thresholds[k - 1]`: the largest radius-over-distance at which order `k` meets the
     /// tolerance (`tolerance^(1 / k)`, see [`terms_needed`]).
     thresholds: Vec<f64>,
@@ -296,6 +303,7 @@ impl Tree {
             moments: Vec::new(),
             order,
             theta,
+            core_cut: point_vortex_cut(tolerance),
             thresholds: (1..=order)
                 .map(|k| {
                     // The largest ratio r with terms_needed(r) <= k, found on the same test.
@@ -417,7 +425,7 @@ impl Tree {
             let ci = stack[top];
             let dz = C64::new(p[0] - cell.centre[0], p[1] - cell.centre[1]);
             let d = (dz.re * dz.re + dz.im * dz.im).sqrt();
-            if cell.radius < self.theta * d && d - cell.radius > CORE_CUT * cell.core {
+            if cell.radius < self.theta * d && d - cell.radius > self.core_cut * cell.core {
                 let base = ci * (self.order + 1);
                 // The terms this cell needs: the truncation error after order p is below
                 // (R / d)^(p + 1), so the smallest p with (R / d)^p <= tolerance keeps the
@@ -472,7 +480,7 @@ impl Tree {
     /// complex potential about the leaf's centre (Greengard & Rokhlin 1987, lemma 2.3),
     /// evaluated at each point; near cells are summed directly. A cell is far from a leaf when
     /// the two radii together are below `theta` times the distance of the centres (and the cell's
-    /// blobs are six cores clear of the leaf); the order of each expansion comes from the same
+    /// blobs are [`point_vortex_cut`] cores clear of the leaf); the order of each expansion comes from the same
     /// tolerance as [`Tree::eval`], for the ratio of the summed radii to the distance.
     pub fn eval_points(&self, points: &[[f64; 2]], with_psi: bool) -> Vec<([f64; 2], f64)> {
         let n = points.len();
@@ -576,7 +584,7 @@ impl Tree {
             );
             let dist = (d.re * d.re + d.im * d.im).sqrt();
             let reach = leaf.radius + cell.radius;
-            if reach < self.theta * dist && dist - reach > CORE_CUT * cell.core {
+            if reach < self.theta * dist && dist - reach > self.core_cut * cell.core {
                 // Two truncations, each to the tolerance: the cell's multipole series (its
                 // radius over its distance from the nearest point of the leaf) and the leaf's
                 // Taylor series (the leaf's radius over its distance from the nearest point of

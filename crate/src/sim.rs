@@ -112,7 +112,9 @@ const GROUP_PANELS: usize = 16;
 struct Expansion {
     centre: [f64; 2],
     radius: f64,
-    core: f64,
+    /// m. Distance beyond the radius at which its nodal vortices act as point vortices to the
+    /// tolerance ([`fast::point_vortex_cut`] times their core).
+    clearance: f64,
     moments: Vec<Complex<f64>>,
     range: (usize, usize),
 }
@@ -122,7 +124,7 @@ impl Expansion {
     fn far_velocity(&self, p: [f64; 2]) -> Option<[f64; 2]> {
         let dz = Complex::new(p[0] - self.centre[0], p[1] - self.centre[1]);
         let d = (dz.re * dz.re + dz.im * dz.im).sqrt();
-        if self.radius < TREE_THETA * d && d - self.radius > 6.0 * self.core {
+        if self.radius < TREE_THETA * d && d - self.radius > self.clearance {
             let order = self.moments.len() - 1;
             let p_used = fast::terms_needed(self.radius / d, TREE_TOLERANCE, order);
             let t = Complex::new(1.0, 0.0) / dz;
@@ -1382,7 +1384,7 @@ impl Simulation {
         Expansion {
             centre: c,
             radius,
-            core: core.min(self.delta_sq.sqrt()),
+            clearance: fast::point_vortex_cut(TREE_TOLERANCE) * smaller(core, self.delta_sq.sqrt()),
             moments: m,
             range: (k0, k1),
         }
