@@ -1656,3 +1656,80 @@ pub(crate) fn case_motions(sim: &Simulation) -> Vec<(Motion, f64, f64)> {
         .map(|b| (b.motion, b.chord, b.pivot))
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Total circulation and first moment `sum Gamma (x, y)` of a wake.
+    fn moments(w: &Wake) -> (f64, f64, f64) {
+        let mut m = (0.0, 0.0, 0.0);
+        for i in 0..w.len() {
+            m.0 += w.gamma[i];
+            m.1 += w.gamma[i] * w.x[i];
+            m.2 += w.gamma[i] * w.y[i];
+        }
+        m
+    }
+
+    #[test]
+    fn merging_by_distance_keeps_circulation_and_its_first_moment() {
+        // Two foils' wakes interleaved as they are shed, runs of 7 same-sign particles, spread
+        // along x from 0 to 3 m; merging allowed beyond x = 1 m with spacing 0.1 x.
+        let mut w = Wake::default();
+        for k in 0..300 {
+            let x = 0.01 * k as f64;
+            let sign = if (k / 7) % 2 == 0 { 1.0 } else { -1.0 };
+            w.push(
+                [x, 0.02 * (x * 5.0).sin()],
+                sign * (1.0 + 0.001 * k as f64),
+                0,
+            );
+            w.push([x, -0.3], -sign * 0.5, 1);
+        }
+        let before = moments(&w);
+        let n0 = w.len();
+        let near: Vec<(f64, f64, f64)> = (0..n0)
+            .filter(|&i| w.x[i] < 1.0)
+            .map(|i| (w.x[i], w.y[i], w.gamma[i]))
+            .collect();
+        let mut removed = 0;
+        for _ in 0..10 {
+            removed += w.merge_by_distance(2, |p| if p[0] < 1.0 { 0.0 } else { 0.1 * p[0] });
+        }
+        let after = moments(&w);
+        assert_eq!(w.len(), n0 - removed);
+        assert!(removed > n0 / 3, "only {removed} of {n0} merged");
+        // Round-off of a few hundred additions.
+        assert!((after.0 - before.0).abs() < 1e-12 * before.0.abs().max(1.0));
+        assert!((after.1 - before.1).abs() < 1e-12 * before.1.abs().max(1.0));
+        assert!((after.2 - before.2).abs() < 1e-12 * before.2.abs().max(1.0));
+        // Particles inside the clear zone are untouched, in order.
+        let kept: Vec<(f64, f64, f64)> = (0..w.len())
+            .filter(|&i| w.x[i] < 1.0)
+            .map(|i| (w.x[i], w.y[i], w.gamma[i]))
+            .collect();
+        assert_eq!(kept, near);
+        // Merged particles never mix signs or foils: each foil's circulation is kept.
+        for foil in 0..2 {
+            let g: f64 = (0..w.len())
+                .filter(|&i| w.owner[i] == foil)
+                .map(|i| w.gamma[i])
+                .sum();
+            let expected: f64 = (0..300)
+                .map(|k| {
+                    let sign = if (k / 7) % 2 == 0 { 1.0 } else { -1.0 };
+                    if foil == 0 {
+                        sign * (1.0 + 0.001 * k as f64)
+                    } else {
+                        -sign * 0.5
+                    }
+                })
+                .sum();
+            assert!(
+                (g - expected).abs() < 1e-12 * 300.0,
+                "foil {foil}: {g} vs {expected}"
+            );
+        }
+    }
+}
