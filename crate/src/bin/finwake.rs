@@ -291,14 +291,22 @@ fn write_table(out: &mut impl Write, shown: &str, case: &Case, s: &Summary) -> i
     }
     writeln!(
         out,
-        "converged: {}   wake particles: {} of cap {}",
+        "converged: {}   wake particles: {} of cap {} ({})",
         if s.converged {
             "yes"
         } else {
             "no (run more cycles)"
         },
         s.particles,
-        s.particle_cap
+        s.particle_cap,
+        if case.numerics.wake_merge > 0.0 {
+            format!(
+                "far wake merged, numerics.wake_merge = {}",
+                case.numerics.wake_merge
+            )
+        } else {
+            "far-wake merging off".to_string()
+        }
     )?;
     writeln!(out)?;
 
