@@ -396,6 +396,16 @@ impl Tree {
         tree
     }
 
+    /// Expansion order needed at radius-over-distance `ratio`: [`terms_needed`] of the tree's
+    /// tolerance, read from the precomputed thresholds.
+    #[inline]
+    fn order_for(&self, ratio: f64) -> usize {
+        self.thresholds
+            .iter()
+            .position(|&th| ratio <= th)
+            .map_or(self.order, |k| k + 1)
+    }
+
     /// Expansion order used.
     pub fn order(&self) -> usize {
         self.order
@@ -431,12 +441,7 @@ impl Tree {
                 // The terms this cell needs: the truncation error after order p is below
                 // (R / d)^(p + 1), so the smallest p with (R / d)^p <= tolerance keeps the
                 // guarantee of the full order (which is that p for R / d = theta).
-                let ratio = cell.radius / d;
-                let p_used = self
-                    .thresholds
-                    .iter()
-                    .position(|&th| ratio <= th)
-                    .map_or(self.order, |k| k + 1);
+                let p_used = self.order_for(cell.radius / d);
                 let t = C64::new(1.0, 0.0) / dz;
                 let w = horner2(&self.moments[base..=base + p_used], t) * t;
                 u += w.re;
@@ -590,14 +595,8 @@ impl Tree {
                 // radius over its distance from the nearest point of the leaf) and the leaf's
                 // Taylor series (the leaf's radius over its distance from the nearest point of
                 // the cell); each ratio is below theta.
-                let order_for = |ratio: f64| {
-                    self.thresholds
-                        .iter()
-                        .position(|&th| ratio <= th)
-                        .map_or(self.order, |k| k + 1)
-                };
-                let pm = order_for(cell.radius / (dist - leaf.radius));
-                let pl = order_for(leaf.radius / (dist - cell.radius));
+                let pm = self.order_for(cell.radius / (dist - leaf.radius));
+                let pl = self.order_for(leaf.radius / (dist - cell.radius));
                 let a = &self.moments[ci * (self.order + 1)..(ci + 1) * (self.order + 1)];
                 let t = C64::new(1.0, 0.0) / d;
                 // u_n = a_n t^n / n (n >= 1); tpow[l] = t^l.

@@ -820,26 +820,12 @@ impl Simulation {
             // The closing vortex carries the rest of the older wake's circulation.
             closures.push((start, -m));
         }
-        // Velocity and stream function of the free particles at every node of every foil, and
-        // their velocity at every collocation point, in one pass over all cores.
-        // (Each foil's nodes and collocation points come in order along its outline.)
-        let mut at_all_nodes = self
-            .bodies
-            .iter()
-            .flat_map(|b| tree.eval_along(&b.nodes, true))
-            .collect::<Vec<_>>()
-            .into_iter();
-        let mut at_all_mids = self
-            .bodies
-            .iter()
-            .flat_map(|b| tree.eval_along(&b.mids, false))
-            .collect::<Vec<_>>()
-            .into_iter();
         let mut onset_phi: Vec<Vec<f64>> = Vec::with_capacity(self.bodies.len());
         for b in &mut self.bodies {
             let npan = b.panels();
-            let at_nodes: Vec<([f64; 2], f64)> =
-                at_all_nodes.by_ref().take(b.nodes.len()).collect();
+            // Velocity and stream function of the free particles at the foil's nodes, and their
+            // velocity at its collocation points (both come in order along the outline).
+            let at_nodes = tree.eval_along(&b.nodes, true);
             let psi: Vec<f64> = b
                 .nodes
                 .iter()
@@ -853,9 +839,9 @@ impl Simulation {
                 })
                 .collect();
             let un: Vec<[f64; 2]> = at_nodes.iter().map(|f| f.0).collect();
-            let um: Vec<[f64; 2]> = at_all_mids
-                .by_ref()
-                .take(b.mids.len())
+            let um: Vec<[f64; 2]> = tree
+                .eval_along(&b.mids, false)
+                .into_iter()
                 .map(|f| f.0)
                 .collect();
             let mut phi = vec![0.0; npan];

@@ -92,28 +92,25 @@ pub fn bench() -> Result<()> {
     let site_dir = target.join("xtask").join("site");
     site::assemble_site(&site_dir, &pkg)?;
     let chromium = tools::ensure_chromium()?;
-    let page = capture(
-        tools::command("node")
-            .arg("tests/bench/page-rate.mjs")
-            .current_dir(&root)
-            .env("FINWAKE_SITE", &site_dir)
-            .env("FINWAKE_CHROMIUM", &chromium),
-    )?;
-    let page = page.lines().last().unwrap_or("{}").to_string();
+    // A page benchmark: the last line a script in tests/bench prints (one JSON object).
+    let page_script = |script: &str| -> Result<String> {
+        let out = capture(
+            tools::command("node")
+                .arg(format!("tests/bench/{script}"))
+                .current_dir(&root)
+                .env("FINWAKE_SITE", &site_dir)
+                .env("FINWAKE_CHROMIUM", &chromium),
+        )?;
+        Ok(out.lines().last().unwrap_or("{}").to_string())
+    };
+    let page = page_script("page-rate.mjs")?;
     println!("page: {page}");
     let page_sps = number_after(&page, "\"steps_per_second\":").unwrap_or(f64::NAN);
     let page_4000_sps =
         number_after(&page, "\"wake_4000\":{\"steps_per_second\":").unwrap_or(f64::NAN);
 
     println!("==> 12 x 12 spacing-phase map in the page (Web Workers, live run paused)");
-    let page_map = capture(
-        tools::command("node")
-            .arg("tests/bench/page-map.mjs")
-            .current_dir(&root)
-            .env("FINWAKE_SITE", &site_dir)
-            .env("FINWAKE_CHROMIUM", &chromium),
-    )?;
-    let page_map = page_map.lines().last().unwrap_or("{}").to_string();
+    let page_map = page_script("page-map.mjs")?;
     println!("page map: {page_map}");
     let page_map_s = number_after(&page_map, "\"seconds\":").unwrap_or(f64::NAN);
 
