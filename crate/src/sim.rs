@@ -825,7 +825,7 @@ impl Simulation {
             let npan = b.panels();
             // Velocity and stream function of the free particles at the foil's nodes, and their
             // velocity at its collocation points (both come in order along the outline).
-            let at_nodes = tree.eval_along(&b.nodes, true);
+            let (at_nodes, um) = tree.eval_outline(&b.nodes, &b.mids);
             let psi: Vec<f64> = b
                 .nodes
                 .iter()
@@ -839,11 +839,6 @@ impl Simulation {
                 })
                 .collect();
             let un: Vec<[f64; 2]> = at_nodes.iter().map(|f| f.0).collect();
-            let um: Vec<[f64; 2]> = tree
-                .eval_along(&b.mids, false)
-                .into_iter()
-                .map(|f| f.0)
-                .collect();
             let mut phi = vec![0.0; npan];
             let mut acc = 0.0;
             for j in 0..npan {
@@ -1318,11 +1313,24 @@ impl Simulation {
     /// (`integral of (z - c)^n ds`).
     fn body_expansion(&self, b: &Body) -> BodyExpansion {
         let n = b.panels();
-        let whole = self.panel_expansion(b, 0, n);
-        let groups = (0..n)
+        let groups: Vec<Expansion> = (0..n)
             .step_by(GROUP_PANELS)
             .map(|k0| self.panel_expansion(b, k0, (k0 + GROUP_PANELS).min(n)))
             .collect();
+        // The whole foil's moments are the groups' shifted to its centre.
+        let (c, radius) = node_span(&b.nodes);
+        let mut moments = vec![Complex::new(0.0, 0.0); groups[0].moments.len()];
+        for g in &groups {
+            let d = Complex::new(g.centre[0] - c[0], g.centre[1] - c[1]);
+            fast::shift_moments(&g.moments, d, TREE_TOLERANCE, &mut moments);
+        }
+        let whole = Expansion {
+            centre: c,
+            radius,
+            clearance: groups.iter().map(|g| g.clearance).fold(0.0, larger),
+            moments,
+            range: (0, n),
+        };
         BodyExpansion { whole, groups }
     }
 
@@ -1330,16 +1338,7 @@ impl Simulation {
     /// start of each, node 0 excluded).
     fn panel_expansion(&self, b: &Body, k0: usize, k1: usize) -> Expansion {
         let order = ((TREE_TOLERANCE.dln() / TREE_THETA.dln()).ceil() as usize).max(1);
-        let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
-        for p in &b.nodes[k0..=k1] {
-            lo = [smaller(lo[0], p[0]), smaller(lo[1], p[1])];
-            hi = [larger(hi[0], p[0]), larger(hi[1], p[1])];
-        }
-        let c = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
-        let radius = b.nodes[k0..=k1]
-            .iter()
-            .map(|p| ((p[0] - c[0]).powi(2) + (p[1] - c[1]).powi(2)).sqrt())
-            .fold(0.0, larger);
+        let (c, radius) = node_span(&b.nodes[k0..=k1]);
         let cc = Complex::new(c[0], c[1]);
         let mut m = vec![Complex::new(0.0, 0.0); order + 1];
         let reciprocals: Vec<f64> = (0..=order).map(|i| 1.0 / (i as f64 + 1.0)).collect();
@@ -1404,7 +1403,11 @@ impl Simulation {
         // The tree holds the free particles of the start of the step (in index order; they have
         // not moved since) and gives their velocity with its own leaves as targets; the chained
         // ones and this step's new ones are added directly, and evaluated one by one.
-        let direct: Vec<usize> = chained.iter().copied().chain(new_from..np).collect();
+        let mut direct = fast::Elements::default();
+        for i in chained.iter().copied().chain(new_from..np) {
+            let c = [self.wake.x[i], self.wake.y[i]];
+            direct.push(c, self.wake.gamma[i], 0.0, self.delta_sq);
+        }
         let mut at_free = tree.velocity_at_elements().into_iter();
         let from_tree: Vec<[f64; 2]> = (0..np)
             .map(|i| {
@@ -1418,16 +1421,9 @@ impl Simulation {
         let vel: Vec<[f64; 2]> = par_map(np, |i| {
             let p = [self.wake.x[i], self.wake.y[i]];
             let mut u = from_tree[i];
-            for &k in &direct {
-                let v = fast::gaussian_velocity(
-                    [self.wake.x[k], self.wake.y[k]],
-                    self.wake.gamma[k],
-                    self.delta_sq,
-                    p,
-                );
-                u[0] += v[0];
-                u[1] += v[1];
-            }
+            let v = direct.velocity(p);
+            u[0] += v[0];
+            u[1] += v[1];
             u[0] += self.speed;
             for (b, e) in self.bodies.iter().zip(&expansions) {
                 let v = self.body_velocity(b, e, p);
@@ -1472,6 +1468,21 @@ impl Simulation {
             }
         }
     }
+}
+
+/// Centre of the bounding box of `pts` and the largest distance of a point from it.
+fn node_span(pts: &[[f64; 2]]) -> ([f64; 2], f64) {
+    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+    for p in pts {
+        lo = [smaller(lo[0], p[0]), smaller(lo[1], p[1])];
+        hi = [larger(hi[0], p[0]), larger(hi[1], p[1])];
+    }
+    let c = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
+    let radius = pts
+        .iter()
+        .map(|p| ((p[0] - c[0]).powi(2) + (p[1] - c[1]).powi(2)).sqrt())
+        .fold(0.0, larger);
+    (c, radius)
 }
 
 fn bounding_box(pts: &[[f64; 2]], margin: f64) -> ([f64; 2], [f64; 2]) {
