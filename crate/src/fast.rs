@@ -191,24 +191,33 @@ impl Elements {
 
     /// m/s. Direct sum of the velocity at `p` (the blocked kernel of the tree's near field).
     pub fn velocity(&self, p: [f64; 2]) -> [f64; 2] {
-        let (xs, ys, gs, qs, d2s) = (&self.x, &self.y, &self.gamma, &self.source, &self.delta_sq);
-        velocity_range::<true, true>(xs, ys, gs, qs, d2s, 0, self.len(), p)
+        velocity_range::<true, true>(self.columns(), 0, self.len(), p)
     }
 
     /// m/s and m^2/s. Direct sum of velocity and stream function at `p` (the reference).
     pub fn direct(&self, p: [f64; 2]) -> ([f64; 2], f64) {
-        direct_range::<true, true>(
-            &self.x,
-            &self.y,
-            &self.gamma,
-            &self.source,
-            &self.delta_sq,
-            0,
-            self.len(),
-            p,
-            true,
-        )
+        direct_range::<true, true>(self.columns(), 0, self.len(), p, true)
     }
+
+    fn columns(&self) -> Columns<'_> {
+        Columns {
+            x: &self.x,
+            y: &self.y,
+            gamma: &self.gamma,
+            source: &self.source,
+            delta_sq: &self.delta_sq,
+        }
+    }
+}
+
+/// The columns of a set of elements, borrowed (see [`Elements`] for units).
+#[derive(Clone, Copy)]
+struct Columns<'a> {
+    x: &'a [f64],
+    y: &'a [f64],
+    gamma: &'a [f64],
+    source: &'a [f64],
+    delta_sq: &'a [f64],
 }
 
 /// Independent accumulators of the direct sums: the loop over elements runs `LANES` at a time
@@ -248,17 +257,13 @@ fn exp_nonpositive(x: f64) -> f64 {
 /// the shield `1 - exp(-r^2 / delta^2)` is 1 beyond six cores, where `exp(-36)` is below
 /// round-off). Without `SHIELD` every element is taken to be beyond six cores of `p`.
 #[inline]
-#[allow(clippy::too_many_arguments)]
 fn velocity_range<const SRC: bool, const SHIELD: bool>(
-    xs: &[f64],
-    ys: &[f64],
-    gs: &[f64],
-    qs: &[f64],
-    d2s: &[f64],
+    c: Columns,
     lo: usize,
     hi: usize,
     p: [f64; 2],
 ) -> [f64; 2] {
+    let (xs, ys, gs, qs, d2s) = (c.x, c.y, c.gamma, c.source, c.delta_sq);
     let mut au = [0.0; LANES];
     let mut av = [0.0; LANES];
     #[inline(always)]
@@ -320,28 +325,24 @@ fn velocity_range<const SRC: bool, const SHIELD: bool>(
 /// m/s and m^2/s. Velocity (see [`velocity_range`]) and, when `PSI`, stream function at `p` of
 /// elements `lo..hi`; `shielded` false promises that all of them are six cores or more from `p`.
 #[inline]
-#[allow(clippy::too_many_arguments)]
 fn direct_range<const PSI: bool, const SRC: bool>(
-    xs: &[f64],
-    ys: &[f64],
-    gs: &[f64],
-    qs: &[f64],
-    d2s: &[f64],
+    c: Columns,
     lo: usize,
     hi: usize,
     p: [f64; 2],
     shielded: bool,
 ) -> ([f64; 2], f64) {
     let w = if shielded {
-        velocity_range::<SRC, true>(xs, ys, gs, qs, d2s, lo, hi, p)
+        velocity_range::<SRC, true>(c, lo, hi, p)
     } else {
-        velocity_range::<SRC, false>(xs, ys, gs, qs, d2s, lo, hi, p)
+        velocity_range::<SRC, false>(c, lo, hi, p)
     };
     let mut psi = 0.0;
     if PSI {
         for k in lo..hi {
-            if gs[k] != 0.0 {
-                psi += gaussian_stream_function([xs[k], ys[k]], gs[k], d2s[k], p);
+            if c.gamma[k] != 0.0 {
+                let centre = [c.x[k], c.y[k]];
+                psi += gaussian_stream_function(centre, c.gamma[k], c.delta_sq[k], p);
             }
         }
     }
@@ -416,18 +417,26 @@ impl Tables {
 /// to the new centre (Greengard & Rokhlin 1987, lemma 2.2): `a_n += sum_k C(n, k) a_k d^(n - k)`.
 /// `tolerance` picks the cached binomial table; `out` is at most as long as `child`.
 pub fn shift_moments(child: &[C64], d: C64, tolerance: f64, out: &mut [C64]) {
-    let order = child.len() - 1;
-    let t = tables(order, tolerance);
-    let mut dpow = vec![C64::new(1.0, 0.0); order + 1];
-    for m in 1..=order {
-        dpow[m] = dpow[m - 1] * d;
-    }
-    for (n, o) in out.iter_mut().enumerate() {
-        let mut acc = C64::new(0.0, 0.0);
-        for k in 0..=n {
-            acc += child[k] * dpow[n - k] * t.binom[n * (order + 1) + k];
+    let t = tables(child.len() - 1, tolerance);
+    let mut dpow = vec![C64::new(0.0, 0.0); child.len()];
+    t.shift(child, d, &mut dpow, out);
+}
+
+impl Tables {
+    /// [`shift_moments`] with this table's binomials; `dpow` (as long as `child`) is scratch.
+    fn shift(&self, child: &[C64], d: C64, dpow: &mut [C64], out: &mut [C64]) {
+        let w = child.len();
+        dpow[0] = C64::new(1.0, 0.0);
+        for m in 1..w {
+            dpow[m] = dpow[m - 1] * d;
         }
-        *o += acc;
+        for (n, o) in out.iter_mut().enumerate() {
+            let mut acc = C64::new(0.0, 0.0);
+            for k in 0..=n {
+                acc += child[k] * dpow[n - k] * self.binom[n * w + k];
+            }
+            *o += acc;
+        }
     }
 }
 
@@ -509,8 +518,7 @@ impl Tree {
         // Leaves sum their elements; a parent shifts its children's moments to its own centre
         // (children always come after their parent, so a reverse sweep sees them first):
         // a_n(parent) = sum_k C(n, k) a_k(child) d^(n - k), d = child centre - parent centre.
-        let binom = Arc::clone(&tree.tables);
-        let binom = &binom.binom;
+        let tables = Arc::clone(&tree.tables);
         let mut dpow = vec![C64::new(0.0, 0.0); order + 1];
         for ci in (0..tree.cells.len()).rev() {
             let cell = tree.cells[ci];
@@ -531,19 +539,10 @@ impl Tree {
                     for child in [a, b] {
                         let cc = tree.cells[child].centre;
                         let d = C64::new(cc[0] - cell.centre[0], cc[1] - cell.centre[1]);
-                        dpow[0] = C64::new(1.0, 0.0);
-                        for m in 1..=order {
-                            dpow[m] = dpow[m - 1] * d;
-                        }
-                        let cb = child * (order + 1);
-                        for n in 0..=order {
-                            let mut acc = C64::new(0.0, 0.0);
-                            for k in 0..=n {
-                                acc +=
-                                    tree.moments[cb + k] * dpow[n - k] * binom[n * (order + 1) + k];
-                            }
-                            tree.moments[base + n] += acc;
-                        }
+                        // Children come after their parent in the moment array.
+                        let (head, tail) = tree.moments.split_at_mut(child * (order + 1));
+                        let out = &mut head[base..base + order + 1];
+                        tables.shift(&tail[..order + 1], d, &mut dpow, out);
                     }
                 }
             }
@@ -565,7 +564,13 @@ impl Tree {
     /// Direct sum at `p` over the elements of `cell`.
     #[inline]
     fn direct<const PSI: bool>(&self, cell: &Cell, p: [f64; 2]) -> ([f64; 2], f64) {
-        let (xs, ys, gs, qs, d2s) = (&self.xs, &self.ys, &self.gs, &self.qs, &self.d2s);
+        let columns = Columns {
+            x: &self.xs,
+            y: &self.ys,
+            gamma: &self.gs,
+            source: &self.qs,
+            delta_sq: &self.d2s,
+        };
         // Beyond six cores of every element (the cell's largest core) the shield is 1.
         let dx = p[0] - cell.centre[0];
         let dy = p[1] - cell.centre[1];
@@ -573,9 +578,9 @@ impl Tree {
         let shielded = gap <= 6.0 * cell.core;
         let (lo, hi) = (cell.start, cell.end);
         if self.sources {
-            direct_range::<PSI, true>(xs, ys, gs, qs, d2s, lo, hi, p, shielded)
+            direct_range::<PSI, true>(columns, lo, hi, p, shielded)
         } else {
-            direct_range::<PSI, false>(xs, ys, gs, qs, d2s, lo, hi, p, shielded)
+            direct_range::<PSI, false>(columns, lo, hi, p, shielded)
         }
     }
 
@@ -897,8 +902,8 @@ struct LeafField {
     near: Vec<usize>,
 }
 
-/// A leaf cell around `pts`: the centre of their bounding box and the largest distance from it.
-fn enclosing(pts: &[[f64; 2]]) -> Cell {
+/// m. Centre of the bounding box of `pts` and the largest distance of a point from it.
+pub(crate) fn span(pts: &[[f64; 2]]) -> ([f64; 2], f64) {
     let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
     for p in pts {
         lo = [smaller(lo[0], p[0]), smaller(lo[1], p[1])];
@@ -909,6 +914,12 @@ fn enclosing(pts: &[[f64; 2]]) -> Cell {
         .iter()
         .map(|p| ((p[0] - centre[0]).powi(2) + (p[1] - centre[1]).powi(2)).sqrt())
         .fold(0.0, larger);
+    (centre, radius)
+}
+
+/// A leaf cell around `pts` (see [`span`]).
+fn enclosing(pts: &[[f64; 2]]) -> Cell {
+    let (centre, radius) = span(pts);
     Cell {
         start: 0,
         end: pts.len(),
@@ -1033,16 +1044,7 @@ mod tests {
                 let f = el.source[k] / (2.0 * PI * (dx * dx + dy * dy));
                 u = [u[0] + v[0] + f * dx, u[1] + v[1] + f * dy];
             }
-            let w = velocity_range::<true, true>(
-                &el.x,
-                &el.y,
-                &el.gamma,
-                &el.source,
-                &el.delta_sq,
-                0,
-                hi,
-                p,
-            );
+            let w = velocity_range::<true, true>(el.columns(), 0, hi, p);
             let scale = 1.0 + u[0].abs() + u[1].abs();
             assert!(
                 (w[0] - u[0]).abs() < 1e-13 * scale && (w[1] - u[1]).abs() < 1e-13 * scale,

@@ -1318,7 +1318,7 @@ impl Simulation {
             .map(|k0| self.panel_expansion(b, k0, (k0 + GROUP_PANELS).min(n)))
             .collect();
         // The whole foil's moments are the groups' shifted to its centre.
-        let (c, radius) = node_span(&b.nodes);
+        let (c, radius) = fast::span(&b.nodes);
         let mut moments = vec![Complex::new(0.0, 0.0); groups[0].moments.len()];
         for g in &groups {
             let d = Complex::new(g.centre[0] - c[0], g.centre[1] - c[1]);
@@ -1338,7 +1338,7 @@ impl Simulation {
     /// start of each, node 0 excluded).
     fn panel_expansion(&self, b: &Body, k0: usize, k1: usize) -> Expansion {
         let order = ((TREE_TOLERANCE.dln() / TREE_THETA.dln()).ceil() as usize).max(1);
-        let (c, radius) = node_span(&b.nodes[k0..=k1]);
+        let (c, radius) = fast::span(&b.nodes[k0..=k1]);
         let cc = Complex::new(c[0], c[1]);
         let mut m = vec![Complex::new(0.0, 0.0); order + 1];
         let reciprocals: Vec<f64> = (0..=order).map(|i| 1.0 / (i as f64 + 1.0)).collect();
@@ -1468,21 +1468,6 @@ impl Simulation {
             }
         }
     }
-}
-
-/// Centre of the bounding box of `pts` and the largest distance of a point from it.
-fn node_span(pts: &[[f64; 2]]) -> ([f64; 2], f64) {
-    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
-    for p in pts {
-        lo = [smaller(lo[0], p[0]), smaller(lo[1], p[1])];
-        hi = [larger(hi[0], p[0]), larger(hi[1], p[1])];
-    }
-    let c = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
-    let radius = pts
-        .iter()
-        .map(|p| ((p[0] - c[0]).powi(2) + (p[1] - c[1]).powi(2)).sqrt())
-        .fold(0.0, larger);
-    (c, radius)
 }
 
 fn bounding_box(pts: &[[f64; 2]], margin: f64) -> ([f64; 2], [f64; 2]) {
