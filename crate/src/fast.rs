@@ -33,6 +33,10 @@ pub fn point_vortex_cut(tolerance: f64) -> f64 {
 const LEAF: usize = 16;
 /// Points per leaf of the target tree of [`Tree::eval_points`].
 const TARGET_LEAF: usize = 16;
+
+/// Target leaves below which a tree evaluation runs on one thread (about a thousand points;
+/// see `sim::par_map`).
+const PARALLEL_LEAVES: usize = 64;
 /// Beyond this `r^2 / delta^2`, `E1` (below `exp(-x) / x = 1e-19`) is negligible beside `ln r^2`.
 const E1_NEGLIGIBLE: f64 = 40.0;
 /// Euler-Mascheroni constant.
@@ -681,18 +685,19 @@ impl Tree {
         let mut cells = Vec::with_capacity(2 * n / TARGET_LEAF + 2);
         build_with(&targets, &mut idx, 0, n, &mut cells, TARGET_LEAF);
         let leaves: Vec<Cell> = cells.into_iter().filter(|c| c.children.is_none()).collect();
-        let per_leaf: Vec<Vec<([f64; 2], f64)>> = crate::sim::par_map(leaves.len(), |li| {
-            let leaf = &leaves[li];
-            let pts: Vec<[f64; 2]> = idx[leaf.start..leaf.end]
-                .iter()
-                .map(|&i| points[i])
-                .collect();
-            if with_psi {
-                self.leaf_eval::<true>(leaf, &pts)
-            } else {
-                self.leaf_eval::<false>(leaf, &pts)
-            }
-        });
+        let per_leaf: Vec<Vec<([f64; 2], f64)>> =
+            crate::sim::par_map(leaves.len(), PARALLEL_LEAVES, |li| {
+                let leaf = &leaves[li];
+                let pts: Vec<[f64; 2]> = idx[leaf.start..leaf.end]
+                    .iter()
+                    .map(|&i| points[i])
+                    .collect();
+                if with_psi {
+                    self.leaf_eval::<true>(leaf, &pts)
+                } else {
+                    self.leaf_eval::<false>(leaf, &pts)
+                }
+            });
         for (leaf, vals) in leaves.iter().zip(per_leaf) {
             for (&i, v) in idx[leaf.start..leaf.end].iter().zip(vals) {
                 out[i] = v;
@@ -713,7 +718,7 @@ impl Tree {
             );
         }
         let groups = nodes.len().div_ceil(TARGET_LEAF);
-        let per_leaf = crate::sim::par_map(groups, |g| {
+        let per_leaf = crate::sim::par_map(groups, PARALLEL_LEAVES, |g| {
             let lo = g * TARGET_LEAF;
             let nodes_here = &nodes[lo..(lo + TARGET_LEAF).min(nodes.len())];
             let mids_here = &mids[lo.min(mids.len())..(lo + TARGET_LEAF).min(mids.len())];
@@ -743,7 +748,7 @@ impl Tree {
     /// tree's leaves are the target leaves).
     pub fn velocity_at_elements(&self) -> Vec<[f64; 2]> {
         let leaves: Vec<&Cell> = self.cells.iter().filter(|c| c.children.is_none()).collect();
-        let per_leaf = crate::sim::par_map(leaves.len(), |li| {
+        let per_leaf = crate::sim::par_map(leaves.len(), PARALLEL_LEAVES, |li| {
             let leaf = leaves[li];
             let pts: Vec<[f64; 2]> = (leaf.start..leaf.end)
                 .map(|k| [self.xs[k], self.ys[k]])

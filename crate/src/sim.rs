@@ -35,13 +35,19 @@ pub const NEAR_WAKE_CHORDS: f64 = 0.3;
 
 /// `(0..n).map(f).collect()`, on all cores in native builds (each item is computed exactly as in
 /// the sequential map, so results do not depend on the number of threads); sequential in wasm,
-/// and sequential when already on a worker of the thread pool (a sweep runs whole simulations
-/// in parallel, and splitting each step's small loops again only adds scheduling).
-pub(crate) fn par_map<T: Send, F: Fn(usize) -> T + Sync + Send>(n: usize, f: F) -> Vec<T> {
+/// sequential when already on a worker of the thread pool (a sweep runs whole simulations in
+/// parallel, and splitting each step's small loops again only adds scheduling), and sequential
+/// below `min_items` items (waking the pool costs more than a small loop: the default tandem
+/// case, about 230 particles, ran 10 to 40 % slower on two threads than on one).
+pub(crate) fn par_map<T: Send, F: Fn(usize) -> T + Sync + Send>(
+    n: usize,
+    min_items: usize,
+    f: F,
+) -> Vec<T> {
     #[cfg(not(target_arch = "wasm32"))]
     {
         use rayon::prelude::*;
-        if rayon::current_thread_index().is_some() || rayon::current_num_threads() < 2 {
+        if !parallel(n, min_items) {
             (0..n).map(f).collect()
         } else {
             (0..n).into_par_iter().map(f).collect()
@@ -49,8 +55,22 @@ pub(crate) fn par_map<T: Send, F: Fn(usize) -> T + Sync + Send>(n: usize, f: F) 
     }
     #[cfg(target_arch = "wasm32")]
     {
+        let _ = min_items;
         (0..n).map(f).collect()
     }
+}
+
+/// Wake particles below which convection runs on one thread (see [`par_map`]).
+const PARALLEL_PARTICLES: usize = 1024;
+
+/// Rows of the coupling block below which it is assembled on one thread (see [`par_map`]).
+#[cfg(not(target_arch = "wasm32"))]
+const PARALLEL_ROWS: usize = 512;
+
+/// Whether a loop of `n` items runs on the thread pool (see [`par_map`]).
+#[cfg(not(target_arch = "wasm32"))]
+fn parallel(n: usize, min_items: usize) -> bool {
+    n >= min_items && rayon::current_thread_index().is_none() && rayon::current_num_threads() >= 2
 }
 
 /// Dot product in four independent partial sums (so the loop vectorises).
@@ -80,7 +100,7 @@ fn par_rows<T: Send, F: Fn(usize, &mut [f64]) -> T + Sync + Send>(
     #[cfg(not(target_arch = "wasm32"))]
     {
         use rayon::prelude::*;
-        if !(rayon::current_thread_index().is_some() || rayon::current_num_threads() < 2) {
+        if parallel(buf.len() / width.max(1), PARALLEL_ROWS) {
             return buf
                 .par_chunks_mut(width)
                 .enumerate()
@@ -1142,8 +1162,8 @@ impl Simulation {
     /// wide) with the right-hand sides and own trailing-edge influences `rows`: each foil's
     /// diagonal block is solved with its kept inverse plus the trailing-edge panel by
     /// Sherman-Morrison, starting from the previous step's solution. Returns `None` unless it
-    /// converges to round-off (relative change below 1e-14) within 200 sweeps; the caller then
-    /// factors the whole matrix.
+    /// converges to round-off (relative change, or estimated remaining error, below 1e-14)
+    /// within 200 sweeps; the caller then factors the whole matrix.
     fn solve_blocks(&self, coupling: &[f64], rows: &[(f64, f64)]) -> Option<Vec<f64>> {
         let m = rows.len();
         // Start from the previous two steps' solutions extrapolated linearly (the previous one
@@ -1180,6 +1200,7 @@ impl Simulation {
         let nmax = self.bodies.iter().map(|b| b.panels()).max().unwrap_or(0);
         let mut r = vec![0.0; nmax];
         let mut y = vec![0.0; nmax];
+        let mut prev_change = f64::INFINITY;
         for _sweep in 0..200 {
             let mut change: f64 = 0.0;
             let mut size: f64 = 0.0;
@@ -1212,9 +1233,22 @@ impl Simulation {
                     x[b.offset + j] = xi;
                 }
             }
-            if change <= 1e-14 * size {
+            // Converged when the last change, or the error still left after it, is below
+            // round-off. Block Gauss-Seidel contracts the error by about the same factor
+            // rho = change / previous change each sweep, so the error after this sweep is about
+            // change * rho / (1 - rho) (a geometric tail; trusted only when rho < 1/2, and not
+            // after the first sweep, which has no previous change). For the default tandem case
+            // this saves the fifth of five sweeps; results move by about 1e-13 relative.
+            let rho = change / prev_change;
+            let tail = if prev_change.is_finite() && rho < 0.5 {
+                change * rho / (1.0 - rho)
+            } else {
+                change
+            };
+            if change <= 1e-14 * size || tail <= 1e-14 * size {
                 return Some(x);
             }
+            prev_change = change;
         }
         None
     }
@@ -1418,7 +1452,7 @@ impl Simulation {
                 }
             })
             .collect();
-        let vel: Vec<[f64; 2]> = par_map(np, |i| {
+        let vel: Vec<[f64; 2]> = par_map(np, PARALLEL_PARTICLES, |i| {
             let p = [self.wake.x[i], self.wake.y[i]];
             let mut u = from_tree[i];
             let v = direct.velocity(p);
