@@ -2,7 +2,9 @@
 // one JSON line with the page's own solver steps per second (per second of the worker's computing,
 // and per second of wall time) and frame rate (read from its status readouts once a second, median
 // of the readings taken while the run was going, at the fastest speed) and the memory:
-// * `default`: the default case (far-wake merging keeps its wake near 230 particles);
+// * `default`: the default case run for 100 cycles through a link (its own 8 cycles end within
+//   about a second at full speed, before the first reading; far-wake merging keeps the wake
+//   near 230 particles either way);
 // * `wake_4000`: the default tandem run for 30 cycles with far-wake merging off (`merge=0`)
 //   through a link, measured once the wake has reached the 4,000-particle cap;
 // * `long_run`: the default tandem case for 200 cycles (20,000 steps), memory read after a
@@ -56,6 +58,8 @@ const server = await serve();
 const b = await browser();
 try {
   await openReady(b.page, server.origin);
+  await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=100`);
+  await b.page.waitForSelector("body[data-ready]", { timeout: 60000 });
   const first = await measure(b.page);
   await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=30;merge=0`);
   await b.page.waitForSelector("body[data-ready]", { timeout: 60000 });
