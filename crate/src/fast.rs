@@ -717,24 +717,27 @@ impl Tree {
                 vec![[0.0, 0.0]; mids.len()],
             );
         }
+        // One thread: even 400 panels make only 25 groups, below sim::par_map's worth.
         let groups = nodes.len().div_ceil(TARGET_LEAF);
-        let per_leaf = crate::sim::par_map(groups, PARALLEL_LEAVES, |g| {
-            let lo = g * TARGET_LEAF;
-            let nodes_here = &nodes[lo..(lo + TARGET_LEAF).min(nodes.len())];
-            let mids_here = &mids[lo.min(mids.len())..(lo + TARGET_LEAF).min(mids.len())];
-            let mut all = nodes_here.to_vec();
-            all.extend_from_slice(mids_here);
-            let field = self.leaf_field::<true>(&enclosing(&all));
-            let at_nodes: Vec<([f64; 2], f64)> = nodes_here
-                .iter()
-                .map(|&p| self.field_at::<true>(&field, p))
-                .collect();
-            let at_mids: Vec<[f64; 2]> = mids_here
-                .iter()
-                .map(|&p| self.field_at::<false>(&field, p).0)
-                .collect();
-            (at_nodes, at_mids)
-        });
+        let per_leaf: Vec<_> = (0..groups)
+            .map(|g| {
+                let lo = g * TARGET_LEAF;
+                let nodes_here = &nodes[lo..(lo + TARGET_LEAF).min(nodes.len())];
+                let mids_here = &mids[lo.min(mids.len())..(lo + TARGET_LEAF).min(mids.len())];
+                let mut all = nodes_here.to_vec();
+                all.extend_from_slice(mids_here);
+                let field = self.leaf_field::<true>(&enclosing(&all));
+                let at_nodes: Vec<([f64; 2], f64)> = nodes_here
+                    .iter()
+                    .map(|&p| self.field_at::<true>(&field, p))
+                    .collect();
+                let at_mids: Vec<[f64; 2]> = mids_here
+                    .iter()
+                    .map(|&p| self.field_at::<false>(&field, p).0)
+                    .collect();
+                (at_nodes, at_mids)
+            })
+            .collect();
         let mut out_nodes = Vec::with_capacity(nodes.len());
         let mut out_mids = Vec::with_capacity(mids.len());
         for (n, m) in per_leaf {

@@ -1245,7 +1245,8 @@ impl Simulation {
             } else {
                 change
             };
-            if change <= 1e-14 * size || tail <= 1e-14 * size {
+            // (tail <= change, so this includes the plain test on the change.)
+            if tail <= 1e-14 * size {
                 return Some(x);
             }
             prev_change = change;

@@ -3,8 +3,8 @@
 // and per second of wall time) and frame rate (read from its status readouts once a second, median
 // of the readings taken while the run was going, at the fastest speed) and the memory:
 // * `default`: the default case run for 100 cycles through a link (its own 8 cycles end within
-//   about a second at full speed, before the first reading; far-wake merging keeps the wake
-//   near 230 particles either way);
+//   about a second at full speed, before the first reading; far-wake merging keeps the wake at
+//   about 230 to 460 particles);
 // * `wake_4000`: the default tandem run for 30 cycles with far-wake merging off (`merge=0`)
 //   through a link, measured once the wake has reached the 4,000-particle cap;
 // * `long_run`: the default tandem case for 200 cycles (20,000 steps), memory read after a
@@ -58,14 +58,16 @@ const server = await serve();
 const b = await browser();
 try {
   await openReady(b.page, server.origin);
-  await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=100`);
-  await b.page.waitForSelector("body[data-ready]", { timeout: 60000 });
+  // The default tandem case with `extra` link keys.
+  const openTandem = async (extra) => {
+    await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;${extra}`);
+    await b.page.waitForSelector("body[data-ready]", { timeout: 60000 });
+  };
+  await openTandem("cycles=100");
   const first = await measure(b.page);
-  await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=30;merge=0`);
-  await b.page.waitForSelector("body[data-ready]", { timeout: 60000 });
+  await openTandem("cycles=30;merge=0");
   const wake = await measure(b.page, { minParticles: 4000, seconds: 10 });
-  await b.page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=200`);
-  await b.page.waitForSelector("body[data-ready]", { timeout: 60000 });
+  await openTandem("cycles=200");
   await b.page.waitForTimeout(3000);
   const long = await measure(b.page, { seconds: 40 });
   console.log(JSON.stringify({ steps_per_second: first.steps_per_second, frame_rate: first.frame_rate, default: first, wake_4000: wake, long_run: long }));
