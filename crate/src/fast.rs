@@ -230,6 +230,19 @@ struct Columns<'a> {
 /// LANES` and the lanes are summed in a fixed order, so every target gives the same bits.
 const LANES: usize = 4;
 
+/// `1 / i!` for `i = 0..=13`, computed at compile time by repeated division (each step rounds
+/// once, so entry `i` is within `i` units in the last place; the unit test on
+/// [`exp_nonpositive`] bounds the effect on the sum).
+const INV_FACTORIAL: [f64; 14] = {
+    let mut t = [1.0; 14];
+    let mut i = 1;
+    while i < 14 {
+        t[i] = t[i - 1] / i as f64;
+        i += 1;
+    }
+    t
+};
+
 /// `exp(x)` for `-40 <= x <= 0` in basic IEEE operations only (no table, no branch), so that it
 /// vectorises and rounds the same on every target: `x = k ln 2 + r` with `|r| <= ln 2 / 2`
 /// (Cody & Waite 1980 reduction, `ln 2` split as in musl's `exp`), `exp(r)` by its Taylor
@@ -245,12 +258,14 @@ fn exp_nonpositive(x: f64) -> f64 {
     let t = x * std::f64::consts::LOG2_E + SHIFT;
     let k = t - SHIFT;
     let r = (x - k * LN2_HI) - k * LN2_LO;
-    let mut e = 1.0 + r * (1.0 / 13.0);
+    // Horner's rule on the coefficients 1 / i!, highest first: one multiply and one add a term.
+    let mut e = INV_FACTORIAL[13];
     let mut i = 12;
-    while i >= 1 {
-        e = 1.0 + r * (1.0 / i as f64) * e;
+    while i > 0 {
+        e = INV_FACTORIAL[i] + r * e;
         i -= 1;
     }
+    e = 1.0 + r * e;
     // Low bits of t are k + 1023 after the add (k >= -58 here); shifting by 52 leaves only them.
     let scale = f64::from_bits(t.to_bits().wrapping_add(1023) << 52);
     e * scale
