@@ -84,10 +84,12 @@ pub fn run(args: &SweepArgs) -> Result<(), String> {
     let out = Mutex::new(io::BufWriter::new(io::stdout()));
     let mut columns: Vec<String> = Vec::new();
     if !args.json {
-        // Column names come from the first runnable point's summary (all points share them).
-        let template = Case::from_json(&text)
-            .ok()
-            .and_then(|c| sweep::run(&sweep::isolated(&c, 0)).ok());
+        // Column names come from a one-foil summary widened to every foil (all points share
+        // them): an isolated baseline's when one ran, else the case file's first foil alone.
+        let template = baselines
+            .iter()
+            .find_map(|(_, s)| s.clone())
+            .or_else(|| sweep::run(&sweep::isolated(&case, 0)).ok());
         let mut keys: Vec<String> = vec!["index".into()];
         keys.extend(axes.iter().map(|a| a.key.clone()));
         if let Some(t) = template {
