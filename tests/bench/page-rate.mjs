@@ -5,8 +5,12 @@
 // * `default`: the default case run for 100 cycles through a link (its own 8 cycles end within
 //   about a second at full speed, before the first reading; far-wake merging keeps the wake at
 //   about 230 to 460 particles);
-// * `wake_4000`: the default tandem run for 30 cycles with far-wake merging off (`merge=0`)
-//   through a link, measured once the wake has reached the 4,000-particle cap;
+// * `wake_4000`: the default tandem run for 40 cycles with far-wake merging off (`merge=0`)
+//   through a link, measured once the wake has grown to 4,000 particles. The step that passes
+//   the cap merges the oldest particles down to nine tenths of it, so with the default cap of
+//   4,000 the count would cycle between 3,600 and 4,000; the link sets the cap to 4,400
+//   (`cap=4400`), so that the count stays between 3,960 and 4,400 while it is measured. The
+//   readings' lowest and highest counts are reported with the rate;
 // * `long_run`: the default tandem case for 200 cycles (20,000 steps), memory read after a
 //   garbage collection at the start and the end of a long window: the page's JS heap and the
 //   solver worker's WebAssembly memory (`body[data-solver-memory]`, bytes).
@@ -35,6 +39,7 @@ async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
   const wall = [];
   const fps = [];
   let particles = 0;
+  const counts = [];
   for (let i = 0; i < seconds; i++) {
     await page.waitForTimeout(1000);
     if ((await page.getAttribute("body", "data-run-state")) === "finished") break;
@@ -42,6 +47,7 @@ async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
     wall.push(Number(await page.getAttribute('[data-stat="steps_per_second"]', "data-wall")));
     fps.push(await stat("frame_rate"));
     particles = await stat("particles");
+    counts.push(particles);
   }
   const median = (v) => {
     const s = v.filter(Number.isFinite).sort((a, b) => a - b);
@@ -49,7 +55,7 @@ async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
   };
   const stepsEnd = await stat("step");
   return {
-    steps_per_second: median(sps), wall_steps_per_second: median(wall), frame_rate: median(fps), samples: sps.length, particles, steps: stepsEnd,
+    steps_per_second: median(sps), wall_steps_per_second: median(wall), frame_rate: median(fps), samples: sps.length, particles, particles_low: Math.min(...counts), particles_high: Math.max(...counts), steps: stepsEnd,
     heap_mb_start: heapStart, heap_mb_end: await heap(), solver_mb_start: solverStart, solver_mb_end: await solverMb(),
   };
 }
@@ -65,7 +71,7 @@ try {
   };
   await openTandem("cycles=100");
   const first = await measure(b.page);
-  await openTandem("cycles=30;merge=0");
+  await openTandem("cycles=40;merge=0;cap=4400");
   const wake = await measure(b.page, { minParticles: 4000, seconds: 10 });
   await openTandem("cycles=200");
   await b.page.waitForTimeout(3000);
