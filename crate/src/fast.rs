@@ -450,8 +450,8 @@ struct Tables {
     thresholds: Vec<f64>,
     /// `1 / k` for k = 0..=order+1 (0 for k = 0).
     inverse: Vec<f64>,
-    /// `C(n + l - 1, l)` at `[l * (order + 1) + n]` for l = 0..=order+1, n = 1..=order (the
-    /// local expansion of `(d + zeta)^-n`).
+    /// `C(n + l - 1, l)` at `[n * (order + 2) + l]` for l = 0..=order+1, n = 1..=order (the
+    /// local expansion of `(d + zeta)^-n`; each `n` a contiguous row over `l`).
     binom_shift: Vec<f64>,
     /// `C(n, k)` at `[n * (order + 1) + k]` for 0 <= k <= n <= order (shifting moments).
     binom: Vec<f64>,
@@ -476,7 +476,7 @@ impl Tables {
                 for k in 1..=l {
                     c = c * (n + k - 1) as f64 / k as f64;
                 }
-                binom_shift[l * w + n] = c;
+                binom_shift[n * (order + 2) + l] = c;
             }
         }
         Tables {
@@ -969,74 +969,26 @@ impl Tree {
     /// far cells summed into one local expansion about the leaf's centre, and the near leaves.
     /// With `PSI` the expansion carries the stream function's constant too.
     fn leaf_field<const PSI: bool>(&self, leaf: &Cell) -> LeafField {
-        let size = self.order + 2;
         // Coefficients c_l of the complex potential sum_l c_l zeta^l about the leaf's centre;
         // only the imaginary part of c_0 (the stream function's constant) is kept.
-        let mut local = vec![C64::new(0.0, 0.0); size];
+        let mut local = vec![C64::new(0.0, 0.0); self.order + 2];
         let mut near: Vec<usize> = Vec::new();
         let mut stack = [0usize; 128];
         let mut top = 1;
         stack[0] = 0;
-        let mut tpow = vec![C64::new(0.0, 0.0); size + 1];
-        let mut u = vec![C64::new(0.0, 0.0); size];
+        let mut scratch = M2lScratch::new(self.order);
         // Highest local coefficient any far cell has filled.
         let mut filled = 0usize;
         while top > 0 {
             top -= 1;
             let ci = stack[top];
             let cell = &self.cells[ci];
-            // d: from the source cell's centre to the leaf's centre.
-            let d = C64::new(
-                leaf.centre[0] - cell.centre[0],
-                leaf.centre[1] - cell.centre[1],
-            );
-            let dist = (d.re * d.re + d.im * d.im).sqrt();
+            let dist = ((leaf.centre[0] - cell.centre[0]).powi(2)
+                + (leaf.centre[1] - cell.centre[1]).powi(2))
+            .sqrt();
             let reach = leaf.radius + cell.radius;
             if reach < self.theta * dist && dist - reach > self.core_cut * cell.core {
-                // Two truncations, each to the tolerance: the cell's multipole series (its
-                // radius over its distance from the nearest point of the leaf) and the leaf's
-                // Taylor series (the leaf's radius over its distance from the nearest point of
-                // the cell); each ratio is below theta.
-                let pm = self.order_for(cell.radius / (dist - leaf.radius));
-                let pl = self.order_for(leaf.radius / (dist - cell.radius));
-                let a = &self.moments[ci * (self.order + 1)..(ci + 1) * (self.order + 1)];
-                let t = C64::new(1.0, 0.0) / d;
-                // u_n = a_n t^n / n (n >= 1); tpow[l] = t^l.
-                tpow[0] = C64::new(1.0, 0.0);
-                for l in 1..=pm.max(pl + 1) {
-                    tpow[l] = tpow[l - 1] * t;
-                }
-                for nn in 1..=pm {
-                    u[nn] = a[nn] * tpow[nn] * self.tables.inverse[nn];
-                }
-                let p = pm;
-                filled = filled.max(pl + 1);
-                // c_l = (-1)^(l+1) t^l [a_0 / l + sum_n C(n+l-1, l) u_n]   (l >= 1)
-                for l in 1..=pl + 1 {
-                    let mut acc = a[0] * self.tables.inverse[l];
-                    let row =
-                        &self.tables.binom_shift[l * (self.order + 1)..(l + 1) * (self.order + 1)];
-                    for nn in 1..=pm {
-                        acc += u[nn] * row[nn];
-                    }
-                    let term = acc * tpow[l];
-                    if l % 2 == 1 {
-                        local[l] += term;
-                    } else {
-                        local[l] -= term;
-                    }
-                }
-                if PSI {
-                    // Im c_0 = Im[a_0 log d - sum_n u_n].
-                    let mut im = a[0].im * 0.5 * (d.re * d.re + d.im * d.im).dln();
-                    if a[0].re != 0.0 {
-                        im += a[0].re * d.im.datan2(d.re);
-                    }
-                    for un in &u[1..=p] {
-                        im -= un.im;
-                    }
-                    local[0].im += im;
-                }
+                filled = filled.max(self.m2l::<PSI>(ci, leaf, &mut local, &mut scratch));
             } else if let Some((a, b)) = cell.children {
                 stack[top] = a;
                 stack[top + 1] = b;
@@ -1051,6 +1003,78 @@ impl Tree {
             local,
             near,
         }
+    }
+
+    /// Adds the far cell `ci`, as a local expansion about the centre of `target` (a disc of
+    /// its radius), to `local` (`c_l` of the complex potential `sum_l c_l zeta^l`; with `PSI`
+    /// the imaginary part of `c_0` too), and returns the highest `l` it filled (Greengard &
+    /// Rokhlin 1987, lemma 2.3). The caller has checked that the two are far apart.
+    #[inline]
+    fn m2l<const PSI: bool>(
+        &self,
+        ci: usize,
+        target: &Cell,
+        local: &mut [C64],
+        scratch: &mut M2lScratch,
+    ) -> usize {
+        let cell = &self.cells[ci];
+        let M2lScratch { tpow, u, acc } = scratch;
+        // d: from the source cell's centre to the target's centre.
+        let d = C64::new(
+            target.centre[0] - cell.centre[0],
+            target.centre[1] - cell.centre[1],
+        );
+        let dist = (d.re * d.re + d.im * d.im).sqrt();
+        // Two truncations, each to the tolerance: the cell's multipole series (its radius over
+        // its distance from the nearest point of the target) and the target's Taylor series (its
+        // radius over its distance from the nearest point of the cell); each ratio is below
+        // theta.
+        let pm = self.order_for(cell.radius / (dist - target.radius));
+        let pl = self.order_for(target.radius / (dist - cell.radius));
+        let a = &self.moments[ci * (self.order + 1)..(ci + 1) * (self.order + 1)];
+        let t = C64::new(1.0, 0.0) / d;
+        // u_n = a_n t^n / n (n >= 1); tpow[l] = t^l.
+        tpow[0] = C64::new(1.0, 0.0);
+        for l in 1..=pm.max(pl + 1) {
+            tpow[l] = tpow[l - 1] * t;
+        }
+        for nn in 1..=pm {
+            u[nn] = a[nn] * tpow[nn] * self.tables.inverse[nn];
+        }
+        // c_l = (-1)^(l+1) t^l [a_0 / l + sum_n C(n+l-1, l) u_n]   (l >= 1), summed over n in
+        // the outer loop so that the inner one, over l, has independent sums.
+        let acc = &mut acc[..pl + 2];
+        for l in 1..=pl + 1 {
+            acc[l] = a[0] * self.tables.inverse[l];
+        }
+        let width = self.order + 2;
+        for nn in 1..=pm {
+            let un = u[nn];
+            let row = &self.tables.binom_shift[nn * width..nn * width + pl + 2];
+            for (al, &b) in acc[1..].iter_mut().zip(&row[1..]) {
+                *al += un * b;
+            }
+        }
+        for l in 1..=pl + 1 {
+            let term = acc[l] * tpow[l];
+            if l % 2 == 1 {
+                local[l] += term;
+            } else {
+                local[l] -= term;
+            }
+        }
+        if PSI {
+            // Im c_0 = Im[a_0 log d - sum_n u_n].
+            let mut im = a[0].im * 0.5 * (d.re * d.re + d.im * d.im).dln();
+            if a[0].re != 0.0 {
+                im += a[0].re * d.im.datan2(d.re);
+            }
+            for un in &u[1..=pm] {
+                im -= un.im;
+            }
+            local[0].im += im;
+        }
+        pl + 1
     }
 
     /// m/s and m^2/s. Velocity and (with `PSI`, when the field was made with it) stream
@@ -1087,6 +1111,27 @@ impl Tree {
             psi = local[0].im + f.im;
         }
         ([w.re, -w.im], psi)
+    }
+}
+
+/// Work space of [`Tree::m2l`], sized for one expansion order.
+struct M2lScratch {
+    /// Powers `t^l` of `t = 1 / d`.
+    tpow: Vec<C64>,
+    /// Scaled moments `a_n t^n / n`.
+    u: Vec<C64>,
+    /// Sums over `n` for each `l`.
+    acc: Vec<C64>,
+}
+
+impl M2lScratch {
+    fn new(order: usize) -> M2lScratch {
+        let zero = C64::new(0.0, 0.0);
+        M2lScratch {
+            tpow: vec![zero; order + 3],
+            u: vec![zero; order + 2],
+            acc: vec![zero; order + 2],
+        }
     }
 }
 
