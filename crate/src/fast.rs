@@ -847,14 +847,16 @@ impl Tree {
         (out_nodes, out_mids)
     }
 
-    /// m/s. Velocity at each of the tree's own elements, in the order they were given (the
-    /// tree's leaves are the target leaves).
+    /// m/s. Velocity at each of the tree's own elements, in the order they were given.
     ///
-    /// Two leaves near each other see each other directly, and when all the elements are blobs of
-    /// one core, such a pair is summed once for both (each blob pair's distance and shield serve
-    /// both blobs, with opposite signs). The near relation of the traversal is not always
-    /// symmetric (a leaf can see another's ancestor as far), so a leaf that is near to a leaf
-    /// that is not near to it is summed one way only.
+    /// When all the elements are blobs of one core without sources, the tree meets itself in a
+    /// dual traversal (the cell-cell interactions of the fast multipole method, Greengard &
+    /// Rokhlin 1987; here on the binary tree, with the opening test of [`Tree::eval_points`]
+    /// on pairs of cells): two cells far from each other exchange local expansions, which
+    /// are passed down from each cell to its children; two leaves near each other are summed
+    /// once for both (each blob pair's distance and shield serve both blobs, with opposite
+    /// signs). Otherwise each leaf of the tree is a target leaf (see [`Tree::eval_points`]).
+    /// Each part runs in a fixed order, so the result does not depend on the number of threads.
     pub fn velocity_at_elements(&self) -> Vec<[f64; 2]> {
         let leaves: Vec<usize> = (0..self.cells.len())
             .filter(|&c| self.cells[c].children.is_none())
@@ -862,27 +864,72 @@ impl Tree {
         let Some(delta_sq) = self.uniform_delta_sq.filter(|_| !self.sources) else {
             return self.velocity_at_elements_one_way(&leaves);
         };
-        let fields = crate::sim::par_map(leaves.len(), PARALLEL_LEAVES, |li| {
-            let leaf = &self.cells[leaves[li]];
-            let field = self.leaf_field::<false>(leaf);
-            let far: Vec<[f64; 2]> = (leaf.start..leaf.end)
-                .map(|k| self.local_at::<false>(&field, [self.xs[k], self.ys[k]]).0)
-                .collect();
-            (field.near, far)
-        });
+        let (far, near) = self.self_interactions();
+        let ncells = self.cells.len();
+        // Each cell's far sources, in the order of the traversal.
+        let mut far_of: Vec<Vec<usize>> = vec![Vec::new(); ncells];
+        for &(target, source) in &far {
+            far_of[target].push(source);
+        }
+        let mut locals: Vec<(Vec<C64>, usize)> =
+            crate::sim::par_map(ncells, 2 * PARALLEL_LEAVES, |ci| {
+                let mut local = vec![C64::new(0.0, 0.0); self.order + 2];
+                let mut filled = 0;
+                if !far_of[ci].is_empty() {
+                    let mut scratch = M2lScratch::new(self.order);
+                    for &source in &far_of[ci] {
+                        let f =
+                            self.m2l::<false>(source, &self.cells[ci], &mut local, &mut scratch);
+                        filled = filled.max(f);
+                    }
+                }
+                (local, filled)
+            });
+        // Down the tree (a parent comes before its children): each child adds its parent's
+        // expansion, re-expanded about its own centre (exact: a polynomial's Taylor shift).
+        for ci in 0..ncells {
+            if let Some((x, y)) = self.cells[ci].children {
+                let (parent, filled) = (locals[ci].0.clone(), locals[ci].1);
+                if filled == 0 {
+                    continue;
+                }
+                for child in [x, y] {
+                    let cc = self.cells[child].centre;
+                    let pc = self.cells[ci].centre;
+                    let delta = C64::new(cc[0] - pc[0], cc[1] - pc[1]);
+                    let mut q = parent[..=filled].to_vec();
+                    for i in 0..filled {
+                        for j in (i..filled).rev() {
+                            let next = q[j + 1];
+                            q[j] += delta * next;
+                        }
+                    }
+                    let (local, f) = &mut locals[child];
+                    for l in 1..=filled {
+                        local[l] += q[l];
+                    }
+                    *f = (*f).max(filled);
+                }
+            }
+        }
         let n = self.xs.len();
         let (mut u, mut v) = (vec![0.0; n], vec![0.0; n]);
-        let mut leaf_of = vec![usize::MAX; self.cells.len()];
-        for (li, &c) in leaves.iter().enumerate() {
-            leaf_of[c] = li;
+        for &c in &leaves {
             let cell = &self.cells[c];
-            for (k, w) in (cell.start..cell.end).zip(&fields[li].1) {
+            let (local, filled) = &locals[c];
+            let field = LeafField {
+                centre: cell.centre,
+                local: local[..=*filled].to_vec(),
+                near: Vec::new(),
+            };
+            for k in cell.start..cell.end {
+                let (w, _) = self.local_at::<false>(&field, [self.xs[k], self.ys[k]]);
                 u[k] = w[0];
                 v[k] = w[1];
             }
         }
-        // The near sums in a fixed number of parts by leaf (parts write into their own sums,
-        // added in part order), so that they can run on several threads with the same result.
+        // The near pairs in a fixed number of parts (parts write into their own sums, added
+        // in part order), so that they can run on several threads with the same result.
         let parts = if leaves.len() >= PARALLEL_LEAVES {
             NEAR_PARTS
         } else {
@@ -891,34 +938,27 @@ impl Tree {
         let columns = self.columns();
         let sums = crate::sim::par_map(parts, 2, |part| {
             let (mut u, mut v) = (vec![0.0; n], vec![0.0; n]);
-            let count = leaves.len();
-            for li in part * count / parts..(part + 1) * count / parts {
-                let c = leaves[li];
-                let a = &self.cells[c];
-                for &cb in &fields[li].0 {
-                    let lj = leaf_of[cb];
-                    let b = &self.cells[cb];
-                    if lj != li && fields[lj].0.contains(&c) {
-                        if li < lj {
-                            let gap = ((a.centre[0] - b.centre[0]).powi(2)
-                                + (a.centre[1] - b.centre[1]).powi(2))
-                            .sqrt()
-                                - a.radius
-                                - b.radius;
-                            // Beyond six cores every shield is exactly 1 (see `velocity_range`).
-                            if gap <= 6.0 * delta_sq.sqrt() {
-                                mutual_block::<true>(columns, a, b, delta_sq, &mut u, &mut v);
-                            } else {
-                                mutual_block::<false>(columns, a, b, delta_sq, &mut u, &mut v);
-                            }
-                        }
-                    } else {
-                        for k in a.start..a.end {
-                            let (w, _) = self.direct::<false>(b, [self.xs[k], self.ys[k]]);
-                            u[k] += w[0];
-                            v[k] += w[1];
-                        }
+            let count = near.len();
+            for &(ca, cb) in &near[part * count / parts..(part + 1) * count / parts] {
+                let (a, b) = (&self.cells[ca], &self.cells[cb]);
+                if ca == cb {
+                    for k in a.start..a.end {
+                        let (w, _) = self.direct::<false>(a, [self.xs[k], self.ys[k]]);
+                        u[k] += w[0];
+                        v[k] += w[1];
                     }
+                    continue;
+                }
+                let gap = ((a.centre[0] - b.centre[0]).powi(2)
+                    + (a.centre[1] - b.centre[1]).powi(2))
+                .sqrt()
+                    - a.radius
+                    - b.radius;
+                // Beyond six cores every shield is exactly 1 (see `velocity_range`).
+                if gap <= 6.0 * delta_sq.sqrt() {
+                    mutual_block::<true>(columns, a, b, delta_sq, &mut u, &mut v);
+                } else {
+                    mutual_block::<false>(columns, a, b, delta_sq, &mut u, &mut v);
                 }
             }
             (u, v)
@@ -934,6 +974,63 @@ impl Tree {
             out[self.index[k]] = [u[k], v[k]];
         }
         out
+    }
+
+    /// The tree against itself: the far pairs `(target, source)` of cells (each unordered pair
+    /// listed both ways) and the near pairs of leaves `(a, b)`, `a <= b` (a leaf with itself
+    /// included). Two cells are far when their radii together are below `theta` times the
+    /// distance of their centres and the blobs of both are [`point_vortex_cut`] cores clear of
+    /// the other; otherwise the larger is opened (a leaf is never opened).
+    fn self_interactions(&self) -> (CellPairs, CellPairs) {
+        let mut far = Vec::new();
+        let mut near = Vec::new();
+        if self.cells.is_empty() {
+            return (far, near);
+        }
+        let mut stack = vec![(0usize, 0usize)];
+        while let Some((a, b)) = stack.pop() {
+            let (ca, cb) = (&self.cells[a], &self.cells[b]);
+            if a == b {
+                match ca.children {
+                    None => near.push((a, a)),
+                    Some((x, y)) => {
+                        stack.push((x, y));
+                        stack.push((y, y));
+                        stack.push((x, x));
+                    }
+                }
+                continue;
+            }
+            let dist = ((ca.centre[0] - cb.centre[0]).powi(2)
+                + (ca.centre[1] - cb.centre[1]).powi(2))
+            .sqrt();
+            let reach = ca.radius + cb.radius;
+            if reach < self.theta * dist && dist - reach > self.core_cut * larger(ca.core, cb.core)
+            {
+                far.push((a, b));
+                far.push((b, a));
+                continue;
+            }
+            let open_a = match (ca.children, cb.children) {
+                (None, None) => {
+                    near.push((a.min(b), a.max(b)));
+                    continue;
+                }
+                (Some(_), None) => true,
+                (None, Some(_)) => false,
+                (Some(_), Some(_)) => ca.radius >= cb.radius,
+            };
+            if open_a {
+                let (x, y) = ca.children.expect("opened cells have children");
+                stack.push((y, b));
+                stack.push((x, b));
+            } else {
+                let (x, y) = cb.children.expect("opened cells have children");
+                stack.push((a, y));
+                stack.push((a, x));
+            }
+        }
+        (far, near)
     }
 
     /// [`Tree::velocity_at_elements`] with every near leaf summed one way, for elements of
@@ -1114,6 +1211,9 @@ impl Tree {
     }
 }
 
+/// Pairs of cell indices.
+type CellPairs = Vec<(usize, usize)>;
+
 /// Work space of [`Tree::m2l`], sized for one expansion order.
 struct M2lScratch {
     /// Powers `t^l` of `t = 1 / d`.
@@ -1187,7 +1287,18 @@ fn build(
     build_with(el, idx, start, end, cells, LEAF)
 }
 
-/// [`build`] with leaves of at most `leaf` elements.
+/// One element while a tree is built: its position (m), squared core (m^2) and index.
+#[derive(Clone, Copy)]
+struct Item {
+    x: f64,
+    y: f64,
+    delta_sq: f64,
+    index: usize,
+}
+
+/// [`build`] with leaves of at most `leaf` elements: `idx[start..end]` is reordered so that
+/// each cell's elements are contiguous, and the cells are appended to `cells` (a parent before
+/// its children). Returns the index of the cell made for `start..end`.
 fn build_with(
     el: &Elements,
     idx: &mut [usize],
@@ -1196,35 +1307,59 @@ fn build_with(
     cells: &mut Vec<Cell>,
     leaf: usize,
 ) -> usize {
-    let slice = &mut idx[start..end];
+    // The elements are gathered into one array first, so that the splits move them together
+    // with their keys (no indirect loads while partitioning).
+    let mut items: Vec<Item> = idx[start..end]
+        .iter()
+        .map(|&i| Item {
+            x: el.x[i],
+            y: el.y[i],
+            delta_sq: el.delta_sq[i],
+            index: i,
+        })
+        .collect();
+    let me = split(&mut items, start, cells, leaf);
+    for (slot, item) in idx[start..end].iter_mut().zip(&items) {
+        *slot = item.index;
+    }
+    me
+}
+
+/// The cell of `items` (the elements `offset..offset + items.len()` of the tree) and, when it
+/// holds more than `leaf`, its two halves split at the median of its longer side.
+fn split(items: &mut [Item], offset: usize, cells: &mut Vec<Cell>, leaf: usize) -> usize {
     let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
     let mut core: f64 = 0.0;
-    for &i in slice.iter() {
-        lo = [smaller(lo[0], el.x[i]), smaller(lo[1], el.y[i])];
-        hi = [larger(hi[0], el.x[i]), larger(hi[1], el.y[i])];
-        core = larger(core, el.delta_sq[i]);
+    for it in items.iter() {
+        lo = [smaller(lo[0], it.x), smaller(lo[1], it.y)];
+        hi = [larger(hi[0], it.x), larger(hi[1], it.y)];
+        core = larger(core, it.delta_sq);
     }
     let centre = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
-    let radius = slice
+    let radius = items
         .iter()
-        .map(|&i| ((el.x[i] - centre[0]).powi(2) + (el.y[i] - centre[1]).powi(2)).sqrt())
+        .map(|it| ((it.x - centre[0]).powi(2) + (it.y - centre[1]).powi(2)).sqrt())
         .fold(0.0, larger);
     let me = cells.len();
+    let n = items.len();
     cells.push(Cell {
-        start,
-        end,
+        start: offset,
+        end: offset + n,
         centre,
         radius,
         core: core.sqrt(),
         children: None,
     });
-    if end - start > leaf {
-        let axis = if hi[0] - lo[0] >= hi[1] - lo[1] { 0 } else { 1 };
-        let mid = (end - start) / 2;
-        let key = |i: &usize| if axis == 0 { el.x[*i] } else { el.y[*i] };
-        slice.select_nth_unstable_by(mid, |a, b| key(a).total_cmp(&key(b)));
-        let a = build_with(el, idx, start, start + mid, cells, leaf);
-        let b = build_with(el, idx, start + mid, end, cells, leaf);
+    if n > leaf {
+        let mid = n / 2;
+        if hi[0] - lo[0] >= hi[1] - lo[1] {
+            items.select_nth_unstable_by(mid, |a, b| a.x.total_cmp(&b.x));
+        } else {
+            items.select_nth_unstable_by(mid, |a, b| a.y.total_cmp(&b.y));
+        }
+        let (left, right) = items.split_at_mut(mid);
+        let a = split(left, offset, cells, leaf);
+        let b = split(right, offset + mid, cells, leaf);
         cells[me].children = Some((a, b));
     }
     me
