@@ -889,15 +889,16 @@ impl Tree {
         // expansion, re-expanded about its own centre (exact: a polynomial's Taylor shift).
         for ci in 0..ncells {
             if let Some((x, y)) = self.cells[ci].children {
-                let (parent, filled) = (locals[ci].0.clone(), locals[ci].1);
+                let filled = locals[ci].1;
                 if filled == 0 {
                     continue;
                 }
+                let parent = locals[ci].0[..=filled].to_vec();
                 for child in [x, y] {
                     let cc = self.cells[child].centre;
                     let pc = self.cells[ci].centre;
                     let delta = C64::new(cc[0] - pc[0], cc[1] - pc[1]);
-                    let mut q = parent[..=filled].to_vec();
+                    let mut q = parent.clone();
                     for i in 0..filled {
                         for j in (i..filled).rev() {
                             let next = q[j + 1];
@@ -1454,18 +1455,23 @@ mod tests {
         }
     }
 
+    /// Uniform numbers in [0, 1) from a 64-bit linear congruential generator (Knuth's MMIX
+    /// constants) seeded with `seed`: repeatable test data.
+    fn uniform(mut s: u64) -> impl FnMut() -> f64 {
+        move || {
+            s = s
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (s >> 11) as f64 / (1u64 << 53) as f64
+        }
+    }
+
     #[test]
     fn velocity_at_elements_matches_direct_sum() {
         // A rolled-up sheet with cores near the spacing, so shields are active in the near
         // pairs: one core for all (each near pair of leaves summed once for both) and mixed
         // cores (every near leaf summed one way). The tolerance is that of the other tree tests.
-        let mut s: u64 = 987;
-        let mut rnd = || {
-            s = s
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (s >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut rnd = uniform(987);
         let mut one_core = Elements::default();
         let mut mixed = Elements::default();
         for k in 0..2500 {
@@ -1503,13 +1509,7 @@ mod tests {
     #[test]
     fn tree_matches_direct_sum() {
         let mut el = Elements::default();
-        let mut s: u64 = 12345;
-        let mut rnd = || {
-            s = s
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (s >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut rnd = uniform(12345);
         for _ in 0..3000 {
             let p = [4.0 * rnd(), 0.3 * rnd()];
             el.push(p, rnd() - 0.5, 0.0, 1e-6);
