@@ -453,15 +453,16 @@ struct Tables {
     /// `C(n + l - 1, l)` at `[n * (order + 2) + l]` for l = 0..=order+1, n = 1..=order (the
     /// local expansion of `(d + zeta)^-n`; each `n` a contiguous row over `l`).
     binom_shift: Vec<f64>,
-    /// `C(n, k)` at `[n * (order + 1) + k]` for 0 <= k <= n <= order (shifting moments).
+    /// `C(n, k)` at `[n * (order + 2) + k]` for 0 <= k <= n <= order + 1 (shifting moments and
+    /// local expansions).
     binom: Vec<f64>,
 }
 
 impl Tables {
     fn new(order: usize, tolerance: f64) -> Tables {
-        let w = order + 1;
+        let w = order + 2;
         let mut binom = vec![0.0; w * w];
-        for n in 0..=order {
+        for n in 0..=order + 1 {
             binom[n * w] = 1.0;
             for k in 1..=n {
                 binom[n * w + k] =
@@ -515,19 +516,99 @@ pub fn shift_moments(child: &[C64], d: C64, tolerance: f64, out: &mut [C64]) {
 }
 
 impl Tables {
-    /// [`shift_moments`] with this table's binomials; `dpow` (as long as `child`) is scratch.
-    fn shift(&self, child: &[C64], d: C64, dpow: &mut [C64], out: &mut [C64]) {
+    /// [`shift_moments`] with this table's binomials; `scaled` (as long as `child`) is scratch.
+    ///
+    /// Scaled form: with `b_k = a_k d^-k`, `a_n += d^n sum_k C(n, k) b_k`, so the inner sum
+    /// multiplies complex numbers by real binomials only. Each term is the unscaled term over
+    /// `d^n`, so the rounding is of the same size. When `d` is zero, or the powers of `d` would
+    /// leave the range of f64, the terms are summed unscaled.
+    fn shift(&self, child: &[C64], d: C64, scaled: &mut [C64], out: &mut [C64]) {
         let w = child.len();
-        dpow[0] = C64::new(1.0, 0.0);
-        for m in 1..w {
-            dpow[m] = dpow[m - 1] * d;
-        }
-        for (n, o) in out.iter_mut().enumerate() {
-            let mut acc = C64::new(0.0, 0.0);
-            for k in 0..=n {
-                acc += child[k] * dpow[n - k] * self.binom[n * w + k];
+        let bw = self.binom_width();
+        debug_assert!(out.len() <= w && w <= bw);
+        if !self.scale_by(child, d, scaled) {
+            let mut dpow = C64::new(1.0, 0.0);
+            for m in 0..w {
+                scaled[m] = dpow;
+                dpow *= d;
             }
-            *o += acc;
+            for (n, o) in out.iter_mut().enumerate() {
+                let mut acc = C64::new(0.0, 0.0);
+                for k in 0..=n {
+                    acc += child[k] * scaled[n - k] * self.binom[n * bw + k];
+                }
+                *o += acc;
+            }
+            return;
+        }
+        let mut dn = C64::new(1.0, 0.0);
+        for (n, o) in out.iter_mut().enumerate() {
+            let row = &self.binom[n * bw..n * bw + n + 1];
+            let mut acc = C64::new(0.0, 0.0);
+            for (b, &c) in scaled[..=n].iter().zip(row) {
+                acc += b * c;
+            }
+            *o += acc * dn;
+            dn *= d;
+        }
+    }
+
+    /// Row width of `binom`.
+    #[inline]
+    fn binom_width(&self) -> usize {
+        self.inverse.len()
+    }
+
+    /// Writes `a_k d^-k` into `scaled` and returns true when `d` is non-zero, its powers up to
+    /// the length of `a` stay within the range of f64 (below 1e±250) and every scaled value is
+    /// finite; returns false otherwise (the caller then uses the unscaled sums).
+    #[inline]
+    fn scale_by(&self, a: &[C64], d: C64, scaled: &mut [C64]) -> bool {
+        let nd = (d.re * d.re + d.im * d.im).sqrt();
+        if nd == 0.0 || !nd.is_finite() || (a.len() as f64) * nd.dln().abs() > 575.0 {
+            return false;
+        }
+        let inv = C64::new(1.0, 0.0) / d;
+        let mut p = C64::new(1.0, 0.0);
+        let mut finite = true;
+        for (s, &ak) in scaled.iter_mut().zip(a) {
+            *s = ak * p;
+            finite &= s.re.is_finite() && s.im.is_finite();
+            p *= inv;
+        }
+        finite
+    }
+
+    /// Re-expands the local expansion `c` (coefficients of `sum_l c_l zeta^l`) about a centre
+    /// at `delta` from its own and adds its terms `l >= 1` to `out`: `q_j = sum_{l >= j} C(l,
+    /// j) c_l delta^(l - j)` (an exact Taylor shift), in the scaled form `q_j = delta^-j sum_l
+    /// C(l, j) (c_l delta^l)` (see [`Tables::shift`]). `scaled` is scratch as long as `c`.
+    fn shift_local(&self, c: &[C64], delta: C64, scaled: &mut [C64], out: &mut [C64]) {
+        let filled = c.len() - 1;
+        let bw = self.binom_width();
+        let inv_delta = C64::new(1.0, 0.0) / delta;
+        if !self.scale_by(c, inv_delta, scaled) {
+            // Repeated synthetic division (Horner), unscaled.
+            scaled.copy_from_slice(c);
+            for i in 0..filled {
+                for j in (i..filled).rev() {
+                    let next = scaled[j + 1];
+                    scaled[j] += delta * next;
+                }
+            }
+            for l in 1..=filled {
+                out[l] += scaled[l];
+            }
+            return;
+        }
+        let mut dinv = inv_delta;
+        for j in 1..=filled {
+            let mut acc = C64::new(0.0, 0.0);
+            for (l, e) in scaled.iter().enumerate().skip(j) {
+                acc += e * self.binom[l * bw + j];
+            }
+            out[j] += acc * dinv;
+            dinv *= inv_delta;
         }
     }
 }
@@ -887,6 +968,7 @@ impl Tree {
             });
         // Down the tree (a parent comes before its children): each child adds its parent's
         // expansion, re-expanded about its own centre (exact: a polynomial's Taylor shift).
+        let mut scaled = Vec::new();
         for ci in 0..ncells {
             if let Some((x, y)) = self.cells[ci].children {
                 let filled = locals[ci].1;
@@ -894,21 +976,14 @@ impl Tree {
                     continue;
                 }
                 let parent = locals[ci].0[..=filled].to_vec();
+                scaled.resize(filled + 1, C64::new(0.0, 0.0));
                 for child in [x, y] {
                     let cc = self.cells[child].centre;
                     let pc = self.cells[ci].centre;
                     let delta = C64::new(cc[0] - pc[0], cc[1] - pc[1]);
-                    let mut q = parent.clone();
-                    for i in 0..filled {
-                        for j in (i..filled).rev() {
-                            let next = q[j + 1];
-                            q[j] += delta * next;
-                        }
-                    }
                     let (local, f) = &mut locals[child];
-                    for l in 1..=filled {
-                        local[l] += q[l];
-                    }
+                    self.tables
+                        .shift_local(&parent, delta, &mut scaled[..=filled], local);
                     *f = (*f).max(filled);
                 }
             }
