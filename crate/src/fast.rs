@@ -217,6 +217,61 @@ impl Elements {
     }
 }
 
+/// A few elements summed directly, with their enclosing circle and largest core: at a point six
+/// cores or more clear of the circle the blob shield is exactly 1 (see [`velocity_range`]), so
+/// [`BlobGroup::velocity`] skips it there with the same result as [`Elements::velocity`].
+#[derive(Debug, Clone, Default)]
+pub struct BlobGroup {
+    elements: Elements,
+    /// m. Centre of the enclosing circle.
+    centre: [f64; 2],
+    /// m. Radius of the enclosing circle.
+    radius: f64,
+    /// m. Largest core.
+    core: f64,
+    /// True when some element has a source strength.
+    sources: bool,
+}
+
+impl BlobGroup {
+    /// Groups `elements`.
+    pub fn new(elements: Elements) -> BlobGroup {
+        let pts: Vec<[f64; 2]> = elements
+            .x
+            .iter()
+            .zip(&elements.y)
+            .map(|(&x, &y)| [x, y])
+            .collect();
+        let (centre, radius) = span(&pts);
+        let core = elements.delta_sq.iter().copied().fold(0.0, larger).sqrt();
+        let sources = elements.source.iter().any(|&q| q != 0.0);
+        BlobGroup {
+            elements,
+            centre,
+            radius,
+            core,
+            sources,
+        }
+    }
+
+    /// m/s. Direct sum of the velocity at `p` (as [`Elements::velocity`]).
+    pub fn velocity(&self, p: [f64; 2]) -> [f64; 2] {
+        let el = &self.elements;
+        if el.is_empty() {
+            return [0.0, 0.0];
+        }
+        let gap = ((p[0] - self.centre[0]).powi(2) + (p[1] - self.centre[1]).powi(2)).sqrt()
+            - self.radius;
+        let c = el.columns();
+        match (self.sources, gap <= 6.0 * self.core) {
+            (true, true) => velocity_range::<true, true>(c, 0, el.len(), p),
+            (true, false) => velocity_range::<true, false>(c, 0, el.len(), p),
+            (false, true) => velocity_range::<false, true>(c, 0, el.len(), p),
+            (false, false) => velocity_range::<false, false>(c, 0, el.len(), p),
+        }
+    }
+}
+
 /// The columns of a set of elements, borrowed (see [`Elements`] for units).
 #[derive(Clone, Copy)]
 struct Columns<'a> {
@@ -364,19 +419,6 @@ fn mutual_block<const SHIELD: bool>(
     let (xs, ys, gs) = (&c.x[lo..hi], &c.y[lo..hi], &c.gamma[lo..hi]);
     let mut ub = [0.0; LEAF];
     let mut vb = [0.0; LEAF];
-    #[inline(always)]
-    fn kernel<const SHIELD: bool>(dx: f64, dy: f64, d2: f64) -> f64 {
-        let r2 = dx * dx + dy * dy;
-        let inv = if r2 > 0.0 { 1.0 / (2.0 * PI * r2) } else { 0.0 };
-        if SHIELD {
-            let inside = r2 < 36.0 * d2;
-            let arg = if inside { -r2 / d2 } else { -36.0 };
-            let e = exp_nonpositive(arg);
-            (if inside { 1.0 - e } else { 1.0 }) * inv
-        } else {
-            inv
-        }
-    }
     let blocks = nb / LANES;
     for ka in a.start..a.end {
         let (xa, ya, ga) = (c.x[ka], c.y[ka], c.gamma[ka]);
@@ -386,7 +428,7 @@ fn mutual_block<const SHIELD: bool>(
             let k = bl * LANES;
             for j in 0..LANES {
                 let (dx, dy) = (xa - xs[k + j], ya - ys[k + j]);
-                let f = kernel::<SHIELD>(dx, dy, delta_sq);
+                let f = pair_kernel::<SHIELD>(dx, dy, delta_sq);
                 let fa = gs[k + j] * f;
                 au[j] += -fa * dy;
                 av[j] += fa * dx;
@@ -397,7 +439,7 @@ fn mutual_block<const SHIELD: bool>(
         }
         for (j, k) in (blocks * LANES..nb).enumerate() {
             let (dx, dy) = (xa - xs[k], ya - ys[k]);
-            let f = kernel::<SHIELD>(dx, dy, delta_sq);
+            let f = pair_kernel::<SHIELD>(dx, dy, delta_sq);
             let fa = gs[k] * f;
             au[j] += -fa * dy;
             av[j] += fa * dx;
@@ -409,6 +451,73 @@ fn mutual_block<const SHIELD: bool>(
         v[ka] += (av[0] + av[1]) + (av[2] + av[3]);
     }
     for j in 0..nb {
+        u[lo + j] += ub[j];
+        v[lo + j] += vb[j];
+    }
+}
+
+/// s/m^2. The blob kernel of [`velocity_range`] for a pair at `(dx, dy)` of squared core `d2`:
+/// the shield `1 - exp(-r^2 / d2)` (1 from six cores on, or everywhere without `SHIELD`) over
+/// `2 pi r^2`, zero for coincident blobs.
+#[inline(always)]
+fn pair_kernel<const SHIELD: bool>(dx: f64, dy: f64, d2: f64) -> f64 {
+    let r2 = dx * dx + dy * dy;
+    let inv = if r2 > 0.0 { 1.0 / (2.0 * PI * r2) } else { 0.0 };
+    if SHIELD {
+        let inside = r2 < 36.0 * d2;
+        let arg = if inside { -r2 / d2 } else { -36.0 };
+        let e = exp_nonpositive(arg);
+        (if inside { 1.0 - e } else { 1.0 }) * inv
+    } else {
+        inv
+    }
+}
+
+/// m/s. Adds to `u` and `v` (indexed like the columns) the velocities that the blobs of the
+/// leaf `a`, all of squared core `delta_sq` and without sources, induce on each other: each
+/// pair once for both (see [`mutual_block`]). For blob `i` the sum over the blobs after it runs
+/// in [`LANES`] lanes, summed in a fixed order; what the earlier blobs give it is kept apart
+/// and added at the end.
+fn mutual_self(c: Columns, a: &Cell, delta_sq: f64, u: &mut [f64], v: &mut [f64]) {
+    let (lo, hi) = (a.start, a.end);
+    let n = hi - lo;
+    assert!(n <= LEAF, "a leaf holds at most LEAF elements");
+    let (xs, ys, gs) = (&c.x[lo..hi], &c.y[lo..hi], &c.gamma[lo..hi]);
+    let mut ub = [0.0; LEAF];
+    let mut vb = [0.0; LEAF];
+    for i in 0..n {
+        let (xa, ya, ga) = (xs[i], ys[i], gs[i]);
+        let mut au = [0.0; LANES];
+        let mut av = [0.0; LANES];
+        let first = i + 1;
+        let blocks = (n - first) / LANES;
+        for bl in 0..blocks {
+            let k = first + bl * LANES;
+            for j in 0..LANES {
+                let (dx, dy) = (xa - xs[k + j], ya - ys[k + j]);
+                let f = pair_kernel::<true>(dx, dy, delta_sq);
+                let fa = gs[k + j] * f;
+                au[j] += -fa * dy;
+                av[j] += fa * dx;
+                let fb = ga * f;
+                ub[k + j] += fb * dy;
+                vb[k + j] -= fb * dx;
+            }
+        }
+        for (j, k) in (first + blocks * LANES..n).enumerate() {
+            let (dx, dy) = (xa - xs[k], ya - ys[k]);
+            let f = pair_kernel::<true>(dx, dy, delta_sq);
+            let fa = gs[k] * f;
+            au[j] += -fa * dy;
+            av[j] += fa * dx;
+            let fb = ga * f;
+            ub[k] += fb * dy;
+            vb[k] -= fb * dx;
+        }
+        ub[i] += (au[0] + au[1]) + (au[2] + au[3]);
+        vb[i] += (av[0] + av[1]) + (av[2] + av[3]);
+    }
+    for j in 0..n {
         u[lo + j] += ub[j];
         v[lo + j] += vb[j];
     }
@@ -1018,11 +1127,7 @@ impl Tree {
             for &(ca, cb) in &near[part * count / parts..(part + 1) * count / parts] {
                 let (a, b) = (&self.cells[ca], &self.cells[cb]);
                 if ca == cb {
-                    for k in a.start..a.end {
-                        let (w, _) = self.direct::<false>(a, [self.xs[k], self.ys[k]]);
-                        u[k] += w[0];
-                        v[k] += w[1];
-                    }
+                    mutual_self(columns, a, delta_sq, &mut u, &mut v);
                     continue;
                 }
                 let gap = ((a.centre[0] - b.centre[0]).powi(2)
