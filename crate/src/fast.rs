@@ -31,6 +31,10 @@ pub fn point_vortex_cut(tolerance: f64) -> f64 {
 
 /// Elements per leaf cell (16: fewest operations for the default case, by instruction count).
 const LEAF: usize = 16;
+const _: () = assert!(
+    LEAF.is_multiple_of(LANES),
+    "mutual_block pads leaves to whole blocks"
+);
 /// Points per leaf of the target tree of [`Tree::eval_points`].
 const TARGET_LEAF: usize = 16;
 
@@ -416,36 +420,42 @@ fn mutual_block<const SHIELD: bool>(
     let (lo, hi) = (b.start, b.end);
     let nb = hi - lo;
     assert!(nb <= LEAF, "a leaf holds at most LEAF elements");
-    let (xs, ys, gs) = (&c.x[lo..hi], &c.y[lo..hi], &c.gamma[lo..hi]);
+    // b's blobs in fixed-size arrays, padded to whole blocks of LANES with blobs of zero
+    // strength at b's last blob (they add zeros to a's sums, and their own sums are dropped),
+    // so that every block has known bounds and vectorises. A blob of b adds into lane
+    // `k % LANES` as in `velocity_range`.
+    let blocks = nb.div_ceil(LANES);
+    let (mut xs, mut ys, mut gs) = ([0.0; LEAF], [0.0; LEAF], [0.0; LEAF]);
+    xs[..nb].copy_from_slice(&c.x[lo..hi]);
+    ys[..nb].copy_from_slice(&c.y[lo..hi]);
+    gs[..nb].copy_from_slice(&c.gamma[lo..hi]);
+    for k in nb..blocks * LANES {
+        xs[k] = xs[nb - 1];
+        ys[k] = ys[nb - 1];
+    }
     let mut ub = [0.0; LEAF];
     let mut vb = [0.0; LEAF];
-    let blocks = nb / LANES;
     for ka in a.start..a.end {
         let (xa, ya, ga) = (c.x[ka], c.y[ka], c.gamma[ka]);
         let mut au = [0.0; LANES];
         let mut av = [0.0; LANES];
         for bl in 0..blocks {
             let k = bl * LANES;
+            let xb: &[f64; LANES] = xs[k..k + LANES].try_into().expect("one block");
+            let yb: &[f64; LANES] = ys[k..k + LANES].try_into().expect("one block");
+            let gb: &[f64; LANES] = gs[k..k + LANES].try_into().expect("one block");
+            let ubb: &mut [f64; LANES] = (&mut ub[k..k + LANES]).try_into().expect("one block");
+            let vbb: &mut [f64; LANES] = (&mut vb[k..k + LANES]).try_into().expect("one block");
             for j in 0..LANES {
-                let (dx, dy) = (xa - xs[k + j], ya - ys[k + j]);
+                let (dx, dy) = (xa - xb[j], ya - yb[j]);
                 let f = pair_kernel::<SHIELD>(dx, dy, delta_sq);
-                let fa = gs[k + j] * f;
+                let fa = gb[j] * f;
                 au[j] += -fa * dy;
                 av[j] += fa * dx;
                 let fb = ga * f;
-                ub[k + j] += fb * dy;
-                vb[k + j] -= fb * dx;
+                ubb[j] += fb * dy;
+                vbb[j] -= fb * dx;
             }
-        }
-        for (j, k) in (blocks * LANES..nb).enumerate() {
-            let (dx, dy) = (xa - xs[k], ya - ys[k]);
-            let f = pair_kernel::<SHIELD>(dx, dy, delta_sq);
-            let fa = gs[k] * f;
-            au[j] += -fa * dy;
-            av[j] += fa * dx;
-            let fb = ga * f;
-            ub[k] += fb * dy;
-            vb[k] -= fb * dx;
         }
         u[ka] += (au[0] + au[1]) + (au[2] + au[3]);
         v[ka] += (av[0] + av[1]) + (av[2] + av[3]);
