@@ -1657,6 +1657,61 @@ mod tests {
     }
 
     #[test]
+    fn shifts_match_the_binomial_sums() {
+        // Moments (Greengard & Rokhlin 1987, lemma 2.2) and local expansions (an exact Taylor
+        // shift) against the plain binomial sums, for an ordinary shift (scaled sums), a zero
+        // shift and one so small that its powers leave the range of f64 (both unscaled).
+        // Tolerance 1e-13 relative: a few hundred roundings of terms of like size.
+        let order = 20;
+        let t = tables(order, 1e-6);
+        let mut rnd = uniform(4242);
+        let child: Vec<C64> = (0..=order)
+            .map(|k| C64::new(rnd() - 0.5, rnd() - 0.5) * 0.3f64.powi(k as i32))
+            .collect();
+        let binom = |n: usize, k: usize| -> f64 {
+            (1..=k).fold(1.0, |c, i| c * (n + 1 - i) as f64 / i as f64)
+        };
+        let close = |a: &[C64], b: &[C64]| {
+            let scale = b.iter().map(|z| z.norm()).fold(0.0, f64::max);
+            let worst = a
+                .iter()
+                .zip(b)
+                .map(|(x, y)| (x - y).norm())
+                .fold(0.0, f64::max);
+            assert!(
+                worst <= 1e-13 * scale,
+                "shift off by {worst:e} of {scale:e}"
+            );
+        };
+        for d in [
+            C64::new(0.21, -0.13),
+            C64::new(0.0, 0.0),
+            C64::new(1e-30, 2e-30),
+        ] {
+            let mut reference = vec![C64::new(0.0, 0.0); order + 1];
+            for (n, r) in reference.iter_mut().enumerate() {
+                for k in 0..=n {
+                    *r += child[k] * d.powu((n - k) as u32) * binom(n, k);
+                }
+            }
+            let mut out = vec![C64::new(0.0, 0.0); order + 1];
+            let mut scratch = vec![C64::new(0.0, 0.0); order + 1];
+            t.shift(&child, d, &mut scratch, &mut out);
+            close(&out, &reference);
+            // Local: q_j = sum_{l >= j} C(l, j) c_l d^(l - j); out gets j >= 1 only.
+            let mut reference = vec![C64::new(0.0, 0.0); order + 1];
+            for (j, r) in reference.iter_mut().enumerate().skip(1) {
+                for l in j..=order {
+                    *r += child[l] * d.powu((l - j) as u32) * binom(l, j);
+                }
+            }
+            let mut out = vec![C64::new(0.0, 0.0); order + 1];
+            t.shift_local(&child, d, &mut scratch, &mut out);
+            close(&out, &reference);
+        }
+    }
+
+    #[test]
     fn velocity_at_elements_matches_direct_sum() {
         // A rolled-up sheet with cores near the spacing, so shields are active in the near
         // pairs: one core for all (each near pair of leaves summed once for both) and mixed
