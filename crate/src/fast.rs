@@ -447,14 +447,15 @@ fn mutual_block<const SHIELD: bool>(
             let ubb: &mut [f64; LANES] = (&mut ub[k..k + LANES]).try_into().expect("one block");
             let vbb: &mut [f64; LANES] = (&mut vb[k..k + LANES]).try_into().expect("one block");
             for j in 0..LANES {
-                let (dx, dy) = (xa - xb[j], ya - yb[j]);
-                let f = pair_kernel::<SHIELD>(dx, dy, delta_sq);
-                let fa = gb[j] * f;
-                au[j] += -fa * dy;
-                av[j] += fa * dx;
-                let fb = ga * f;
-                ubb[j] += fb * dy;
-                vbb[j] -= fb * dx;
+                add_pair::<SHIELD>(
+                    (xa, ya, ga),
+                    (xb[j], yb[j], gb[j]),
+                    delta_sq,
+                    &mut au[j],
+                    &mut av[j],
+                    &mut ubb[j],
+                    &mut vbb[j],
+                );
             }
         }
         u[ka] += (au[0] + au[1]) + (au[2] + au[3]);
@@ -464,6 +465,30 @@ fn mutual_block<const SHIELD: bool>(
         u[lo + j] += ub[j];
         v[lo + j] += vb[j];
     }
+}
+
+/// Adds one pair's kernel to both blobs: to the lane sums `au`, `av` of blob a at `(xa, ya)`
+/// of circulation `ga` from blob b at `(xb, yb)` of circulation `gb`, and the opposite to b's
+/// sums `ub`, `vb` (see [`pair_kernel`]).
+#[inline(always)]
+#[allow(clippy::too_many_arguments)]
+fn add_pair<const SHIELD: bool>(
+    (xa, ya, ga): (f64, f64, f64),
+    (xb, yb, gb): (f64, f64, f64),
+    delta_sq: f64,
+    au: &mut f64,
+    av: &mut f64,
+    ub: &mut f64,
+    vb: &mut f64,
+) {
+    let (dx, dy) = (xa - xb, ya - yb);
+    let f = pair_kernel::<SHIELD>(dx, dy, delta_sq);
+    let fa = gb * f;
+    *au += -fa * dy;
+    *av += fa * dx;
+    let fb = ga * f;
+    *ub += fb * dy;
+    *vb -= fb * dx;
 }
 
 /// s/m^2. The blob kernel of [`velocity_range`] for a pair at `(dx, dy)` of squared core `d2`:
@@ -504,25 +529,15 @@ fn mutual_self(c: Columns, a: &Cell, delta_sq: f64, u: &mut [f64], v: &mut [f64]
         for bl in 0..blocks {
             let k = first + bl * LANES;
             for j in 0..LANES {
-                let (dx, dy) = (xa - xs[k + j], ya - ys[k + j]);
-                let f = pair_kernel::<true>(dx, dy, delta_sq);
-                let fa = gs[k + j] * f;
-                au[j] += -fa * dy;
-                av[j] += fa * dx;
-                let fb = ga * f;
-                ub[k + j] += fb * dy;
-                vb[k + j] -= fb * dx;
+                let b = (xs[k + j], ys[k + j], gs[k + j]);
+                let (ubk, vbk) = (&mut ub[k + j], &mut vb[k + j]);
+                add_pair::<true>((xa, ya, ga), b, delta_sq, &mut au[j], &mut av[j], ubk, vbk);
             }
         }
         for (j, k) in (first + blocks * LANES..n).enumerate() {
-            let (dx, dy) = (xa - xs[k], ya - ys[k]);
-            let f = pair_kernel::<true>(dx, dy, delta_sq);
-            let fa = gs[k] * f;
-            au[j] += -fa * dy;
-            av[j] += fa * dx;
-            let fb = ga * f;
-            ub[k] += fb * dy;
-            vb[k] -= fb * dx;
+            let b = (xs[k], ys[k], gs[k]);
+            let (ubk, vbk) = (&mut ub[k], &mut vb[k]);
+            add_pair::<true>((xa, ya, ga), b, delta_sq, &mut au[j], &mut av[j], ubk, vbk);
         }
         ub[i] += (au[0] + au[1]) + (au[2] + au[3]);
         vb[i] += (av[0] + av[1]) + (av[2] + av[3]);
@@ -1094,15 +1109,17 @@ impl Tree {
                 if filled == 0 {
                     continue;
                 }
-                let parent = locals[ci].0[..=filled].to_vec();
+                // Children come after their parent.
+                let (head, tail) = locals.split_at_mut(ci + 1);
+                let parent = &head[ci].0[..=filled];
                 scaled.resize(filled + 1, C64::new(0.0, 0.0));
                 for child in [x, y] {
                     let cc = self.cells[child].centre;
                     let pc = self.cells[ci].centre;
                     let delta = C64::new(cc[0] - pc[0], cc[1] - pc[1]);
-                    let (local, f) = &mut locals[child];
+                    let (local, f) = &mut tail[child - ci - 1];
                     self.tables
-                        .shift_local(&parent, delta, &mut scaled[..=filled], local);
+                        .shift_local(parent, delta, &mut scaled[..=filled], local);
                     *f = (*f).max(filled);
                 }
             }
@@ -1112,13 +1129,9 @@ impl Tree {
         for &c in &leaves {
             let cell = &self.cells[c];
             let (local, filled) = &locals[c];
-            let field = LeafField {
-                centre: cell.centre,
-                local: local[..=*filled].to_vec(),
-                near: Vec::new(),
-            };
             for k in cell.start..cell.end {
-                let (w, _) = self.local_at::<false>(&field, [self.xs[k], self.ys[k]]);
+                let p = [self.xs[k], self.ys[k]];
+                let (w, _) = local_at::<false>(cell.centre, &local[..=*filled], p);
                 u[k] = w[0];
                 v[k] = w[1];
             }
@@ -1369,7 +1382,7 @@ impl Tree {
     /// function at `p`, a point of the leaf `field` was made for.
     #[inline]
     fn field_at<const PSI: bool>(&self, field: &LeafField, p: [f64; 2]) -> ([f64; 2], f64) {
-        let ([mut uu, mut vv], mut psi) = self.local_at::<PSI>(field, p);
+        let ([mut uu, mut vv], mut psi) = local_at::<PSI>(field.centre, &field.local, p);
         for &ci in &field.near {
             let (v, s) = self.direct::<PSI>(&self.cells[ci], p);
             uu += v[0];
@@ -1378,28 +1391,28 @@ impl Tree {
         }
         ([uu, vv], psi)
     }
+}
 
-    /// m/s and m^2/s. The far part of [`Tree::field_at`]: the leaf's local expansion at `p`.
-    #[inline]
-    fn local_at<const PSI: bool>(&self, field: &LeafField, p: [f64; 2]) -> ([f64; 2], f64) {
-        let local = &field.local;
-        let filled = local.len() - 1;
-        let z = C64::new(p[0] - field.centre[0], p[1] - field.centre[1]);
-        // w = sum_l l c_l zeta^(l-1); psi = Im sum_l c_l zeta^l.
-        let mut w = C64::new(0.0, 0.0);
-        for l in (1..=filled).rev() {
-            w = w * z + local[l] * (l as f64);
-        }
-        let mut psi = 0.0;
-        if PSI {
-            let mut f = C64::new(0.0, 0.0);
-            for l in (1..=filled).rev() {
-                f = (f + local[l]) * z;
-            }
-            psi = local[0].im + f.im;
-        }
-        ([w.re, -w.im], psi)
+/// m/s and m^2/s. The far part of [`Tree::field_at`]: the local expansion `local` (`c_l` of
+/// `sum_l c_l zeta^l` about `centre`, up to the highest filled) at `p`.
+#[inline]
+fn local_at<const PSI: bool>(centre: [f64; 2], local: &[C64], p: [f64; 2]) -> ([f64; 2], f64) {
+    let filled = local.len() - 1;
+    let z = C64::new(p[0] - centre[0], p[1] - centre[1]);
+    // w = sum_l l c_l zeta^(l-1); psi = Im sum_l c_l zeta^l.
+    let mut w = C64::new(0.0, 0.0);
+    for l in (1..=filled).rev() {
+        w = w * z + local[l] * (l as f64);
     }
+    let mut psi = 0.0;
+    if PSI {
+        let mut f = C64::new(0.0, 0.0);
+        for l in (1..=filled).rev() {
+            f = (f + local[l]) * z;
+        }
+        psi = local[0].im + f.im;
+    }
+    ([w.re, -w.im], psi)
 }
 
 /// Pairs of cell indices.
