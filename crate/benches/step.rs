@@ -1,10 +1,27 @@
 //! Solver cost: time per step against wake particle count, and the wall time of ten cycles of
 //! the default tandem case. Run with `cargo bench --bench step`; it prints a table (no timing
 //! assertions: machines are shared and noisy, so figures are for reading, not for pass/fail).
+//! At about 4,000 particles it also times the step on one thread, splits that into the wake
+//! tree's build, the wake's velocity on itself and the rest, and compares it with the 3.33 ms a
+//! step may take for 300 steps per second (the live page runs the solver on one thread); the
+//! figures go out as one `STEP_4000_JSON` line for `cargo xtask bench`.
 
 use std::time::Instant;
 
+use finwake::fast::{Elements, Tree};
+use finwake::sim::{TREE_THETA, TREE_TOLERANCE};
 use finwake::{Case, Simulation};
+
+/// ms. Fastest of five runs of `f` (the machine is shared), each divided by `per_run`.
+fn fastest(per_run: usize, mut f: impl FnMut()) -> f64 {
+    let mut ms = f64::INFINITY;
+    for _ in 0..5 {
+        let t0 = Instant::now();
+        f();
+        ms = ms.min(t0.elapsed().as_secs_f64() * 1e3 / per_run as f64);
+    }
+    ms
+}
 
 fn tandem() -> Case {
     Case::from_json(include_str!("../../cases/tandem-two-chords.json")).expect("shipped case")
@@ -24,17 +41,13 @@ fn main() {
             sim.step();
         }
         let n = sim.particles().0.len();
-        // Fastest of five blocks of four steps (the machine is shared).
-        let mut ms = f64::INFINITY;
-        for _ in 0..5 {
-            let t0 = Instant::now();
-            for _ in 0..4 {
-                sim.step();
-            }
-            ms = ms.min(t0.elapsed().as_secs_f64() * 1e3 / 4.0);
-        }
+        // Fastest of five blocks of four steps.
+        let ms = fastest(4, || (0..4).for_each(|_| sim.step()));
         let base = *first.get_or_insert(ms);
         println!("{n:>10} {ms:>14.3} {:>12.2}", ms / base);
+        if target == 4000 {
+            breakdown(&case, &mut sim, ms);
+        }
     }
     // Ten cycles of the default tandem case, as a user runs it.
     let mut case = tandem();
@@ -49,4 +62,52 @@ fn main() {
         wall * 1e3 / s.steps as f64
     );
     std::hint::black_box(s);
+}
+
+/// The 4,000-particle step on one thread and where its time goes (see the module doc).
+fn breakdown(case: &Case, sim: &mut Simulation, all_cores_ms: f64) {
+    // Inside a pool of one thread every parallel loop of the solver runs sequentially.
+    let one = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .expect("a pool of one thread");
+    let n = sim.particles().0.len();
+    let step_ms = one.install(|| fastest(4, || (0..4).for_each(|_| sim.step())));
+    // The wake as one set of blobs of the case's core (the solver leaves out the few newest
+    // particles that form the near-wake panels, so this slightly overstates its share).
+    let chord = case
+        .foils
+        .iter()
+        .map(|f| f.chord)
+        .fold(f64::INFINITY, f64::min);
+    let delta_sq = (case.numerics.core_size * chord).powi(2);
+    let (x, y, g) = sim.particles();
+    let mut wake = Elements::default();
+    for k in 0..x.len() {
+        wake.push([x[k], y[k]], g[k], 0.0, delta_sq);
+    }
+    let build_ms = one.install(|| {
+        fastest(1, || {
+            std::hint::black_box(Tree::new(&wake, TREE_THETA, TREE_TOLERANCE));
+        })
+    });
+    let tree = Tree::new(&wake, TREE_THETA, TREE_TOLERANCE);
+    let self_ms = one.install(|| {
+        fastest(1, || {
+            std::hint::black_box(tree.velocity_at_elements());
+        })
+    });
+    let rest_ms = step_ms - build_ms - self_ms;
+    let budget_ms = 1e3 / 300.0;
+    println!(
+        "{n} particles, one thread: {step_ms:.2} ms per step = wake tree {build_ms:.2} + wake on wake {self_ms:.2} + rest {rest_ms:.2}; \
+         {:.2} times the {budget_ms:.2} ms of 300 steps/s; all cores {all_cores_ms:.2} ms ({:.2} times faster than one thread)",
+        step_ms / budget_ms,
+        step_ms / all_cores_ms
+    );
+    println!(
+        "STEP_4000_JSON {{\"particles\": {n}, \"one_thread_ms\": {step_ms:.3}, \"tree_build_ms\": {build_ms:.3}, \"wake_on_wake_ms\": {self_ms:.3}, \"rest_ms\": {rest_ms:.3}, \"over_300_per_s_budget\": {:.2}, \"all_cores_ms\": {all_cores_ms:.3}, \"threads_speedup\": {:.2}}}",
+        step_ms / budget_ms,
+        step_ms / all_cores_ms
+    );
 }

@@ -3,8 +3,10 @@
 //! error of the fast summation at 1e3, 1e4, 1e5 blobs), `tandem_10_cycles_native_s`,
 //! `wasm_over_native` (the same run in the wasm build under node), `page_steps_per_second`
 //! (default case in headless Chromium), `sweep_12x12_cli_s` and `map_12x12_page_s` (the same
-//! grid as a map in the page). Figures, not pass/fail: the
-//! targets are printed beside them.
+//! grid as a map in the page), and `native_step_4000` (one solver step at about 4,000 wake
+//! particles on one thread, split into the wake tree, the wake on itself and the rest, against
+//! the 3.33 ms of 300 steps per second; and on all cores). Figures, not pass/fail: the targets
+//! are printed beside them.
 
 use std::process::Command;
 use std::time::Instant;
@@ -53,6 +55,21 @@ pub fn bench() -> Result<()> {
         .find_map(|l| l.strip_prefix("FAST_VS_DIRECT_JSON "))
         .ok_or("the fast bench printed no FAST_VS_DIRECT_JSON line")?
         .to_string();
+
+    println!("==> solver step against wake size (cargo bench --bench step)");
+    let text = capture(
+        tools::command("cargo")
+            .args(["bench", "-p", "finwake", "--bench", "step"])
+            .current_dir(&root),
+    )?;
+    print!("{text}");
+    let step_json = text
+        .lines()
+        .find_map(|l| l.strip_prefix("STEP_4000_JSON "))
+        .ok_or("the step bench printed no STEP_4000_JSON line")?
+        .to_string();
+    let step_one_ms = number_after(&step_json, "\"one_thread_ms\":").unwrap_or(f64::NAN);
+    let step_over = number_after(&step_json, "\"over_300_per_s_budget\":").unwrap_or(f64::NAN);
 
     println!("==> native command line, default tandem case, 10 cycles");
     tools::cargo(&["build", "--release", "-p", "finwake", "--bin", "finwake"])?;
@@ -133,7 +150,7 @@ pub fn bench() -> Result<()> {
 
     let ratio = wasm_s / native_s;
     let summary = format!(
-        "{{\n  \"fast_vs_direct\": {fast_json},\n  \"tandem_10_cycles_native_s\": {native_s:.4},\n  \"wasm_over_native\": {ratio:.3},\n  \"page_steps_per_second\": {page_sps:.1},\n  \"page\": {page},\n  \"sweep_12x12_cli_s\": {sweep_s:.2},\n  \"map_12x12_page_s\": {page_map_s:.2},\n  \"page_map\": {page_map}\n}}\n"
+        "{{\n  \"fast_vs_direct\": {fast_json},\n  \"tandem_10_cycles_native_s\": {native_s:.4},\n  \"wasm_over_native\": {ratio:.3},\n  \"page_steps_per_second\": {page_sps:.1},\n  \"page\": {page},\n  \"sweep_12x12_cli_s\": {sweep_s:.2},\n  \"map_12x12_page_s\": {page_map_s:.2},\n  \"page_map\": {page_map},\n  \"native_step_4000\": {step_json}\n}}\n"
     );
     let path = out_dir.join("summary.json");
     std::fs::write(&path, &summary).map_err(|e| e.to_string())?;
@@ -151,6 +168,14 @@ pub fn bench() -> Result<()> {
     println!(
         "{:<34} {:>12.1} {:>16}",
         "page steps/s, 4,000 particles", page_4000_sps, ">= 300"
+    );
+    println!(
+        "{:<34} {:>12.2} {:>16}",
+        "native step, 4,000, 1 thread (ms)", step_one_ms, "300/s: <= 3.33"
+    );
+    println!(
+        "{:<34} {:>12.2} {:>16}",
+        "  the same over 3.33 ms", step_over, "300/s: <= 1"
     );
     println!(
         "{:<34} {:>12.1} {:>16}",
