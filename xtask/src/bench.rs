@@ -36,6 +36,22 @@ fn timed(cmd: &mut Command, reps: usize) -> Result<f64> {
     Ok(best)
 }
 
+/// Runs `cargo bench --bench NAME`, prints its output and returns what follows `KEY ` on the line
+/// that starts with it (the bench's figures as JSON).
+fn cargo_bench_json(root: &std::path::Path, name: &str, key: &str) -> Result<String> {
+    let text = capture(
+        tools::command("cargo")
+            .args(["bench", "-p", "finwake", "--bench", name])
+            .current_dir(root),
+    )?;
+    print!("{text}");
+    let prefix = format!("{key} ");
+    text.lines()
+        .find_map(|l| l.strip_prefix(prefix.as_str()))
+        .map(str::to_string)
+        .ok_or_else(|| format!("the {name} bench printed no {key} line"))
+}
+
 /// Runs every benchmark once and writes the summary.
 pub fn bench() -> Result<()> {
     let root = tools::workspace_root();
@@ -44,30 +60,9 @@ pub fn bench() -> Result<()> {
     std::fs::create_dir_all(&out_dir).map_err(|e| e.to_string())?;
 
     println!("==> fast summation against the direct sum (cargo bench --bench fast)");
-    let text = capture(
-        tools::command("cargo")
-            .args(["bench", "-p", "finwake", "--bench", "fast"])
-            .current_dir(&root),
-    )?;
-    print!("{text}");
-    let fast_json = text
-        .lines()
-        .find_map(|l| l.strip_prefix("FAST_VS_DIRECT_JSON "))
-        .ok_or("the fast bench printed no FAST_VS_DIRECT_JSON line")?
-        .to_string();
-
+    let fast_json = cargo_bench_json(&root, "fast", "FAST_VS_DIRECT_JSON")?;
     println!("==> solver step against wake size (cargo bench --bench step)");
-    let text = capture(
-        tools::command("cargo")
-            .args(["bench", "-p", "finwake", "--bench", "step"])
-            .current_dir(&root),
-    )?;
-    print!("{text}");
-    let step_json = text
-        .lines()
-        .find_map(|l| l.strip_prefix("STEP_4000_JSON "))
-        .ok_or("the step bench printed no STEP_4000_JSON line")?
-        .to_string();
+    let step_json = cargo_bench_json(&root, "step", "STEP_4000_JSON")?;
     let step_one_ms = number_after(&step_json, "\"one_thread_ms\":").unwrap_or(f64::NAN);
     let step_over = number_after(&step_json, "\"over_300_per_s_budget\":").unwrap_or(f64::NAN);
 
