@@ -438,25 +438,45 @@ fn mutual_block<const SHIELD: bool>(
     // A blob of `a` farther than six cores from b's bounding circle is six cores from each of
     // b's blobs, where the shield is exactly 1, so its row needs no exponentials (the same bits;
     // the relative margin of 1e-9 keeps rows within rounding of the cut on the shielded path).
-    let clear_sq = (6.0 * (1.0 + 1e-9) * delta_sq.sqrt() + b.radius).powi(2);
+    // The same holds block by block, for the rows that come near b.
+    let cut = 6.0 * (1.0 + 1e-9) * delta_sq.sqrt();
+    let clear_sq = (cut + b.radius).powi(2);
+    let mut block_clear = [([0.0; 2], 0.0); LEAF / LANES];
+    if SHIELD {
+        for (bl, bc) in block_clear.iter_mut().enumerate().take(blocks) {
+            let k = bl * LANES;
+            let pts: [[f64; 2]; LANES] = std::array::from_fn(|j| [xs[k + j], ys[k + j]]);
+            let (centre, radius) = span(&pts);
+            *bc = (centre, (cut + radius).powi(2));
+        }
+    }
     for ka in a.start..a.end {
         let (xa, ya, ga) = (c.x[ka], c.y[ka], c.gamma[ka]);
         let (ox, oy) = (xa - b.centre[0], ya - b.centre[1]);
+        let blobs = (&xs, &ys, &gs);
         let (su, sv) = if SHIELD && ox * ox + oy * oy <= clear_sq {
-            block_row::<true>(
+            let near_block = |bl: usize| {
+                let (centre, clear_sq) = block_clear[bl];
+                let (dx, dy) = (xa - centre[0], ya - centre[1]);
+                dx * dx + dy * dy <= clear_sq
+            };
+            block_row(
                 (xa, ya, ga),
-                (&xs, &ys, &gs),
+                blobs,
                 blocks,
                 delta_sq,
+                near_block,
                 &mut ub,
                 &mut vb,
             )
         } else {
-            block_row::<false>(
+            let never = |_: usize| false;
+            block_row(
                 (xa, ya, ga),
-                (&xs, &ys, &gs),
+                blobs,
                 blocks,
                 delta_sq,
+                never,
                 &mut ub,
                 &mut vb,
             )
@@ -472,13 +492,15 @@ fn mutual_block<const SHIELD: bool>(
 
 /// m/s. One blob's row of [`mutual_block`]: the velocity that the first `blocks` blocks of
 /// [`LANES`] padded blobs of b induce on blob a (summed over the lanes in a fixed order), and
-/// the opposite added to b's sums `ub`, `vb`.
+/// the opposite added to b's sums `ub`, `vb`; the shield is computed in the blocks for which
+/// `shielded(block)` holds (elsewhere every pair must be six cores or more apart).
 #[inline(always)]
-fn block_row<const SHIELD: bool>(
+fn block_row(
     (xa, ya, ga): (f64, f64, f64),
     (xs, ys, gs): (&[f64; LEAF], &[f64; LEAF], &[f64; LEAF]),
     blocks: usize,
     delta_sq: f64,
+    shielded: impl Fn(usize) -> bool,
     ub: &mut [f64; LEAF],
     vb: &mut [f64; LEAF],
 ) -> (f64, f64) {
@@ -491,16 +513,32 @@ fn block_row<const SHIELD: bool>(
         let gb: &[f64; LANES] = gs[k..k + LANES].try_into().expect("one block");
         let ubb: &mut [f64; LANES] = (&mut ub[k..k + LANES]).try_into().expect("one block");
         let vbb: &mut [f64; LANES] = (&mut vb[k..k + LANES]).try_into().expect("one block");
-        for j in 0..LANES {
-            add_pair::<SHIELD>(
-                (xa, ya, ga),
-                (xb[j], yb[j], gb[j]),
-                delta_sq,
-                &mut au[j],
-                &mut av[j],
-                &mut ubb[j],
-                &mut vbb[j],
-            );
+        if shielded(bl) {
+            for j in 0..LANES {
+                let (au, av, ub, vb) = (&mut au[j], &mut av[j], &mut ubb[j], &mut vbb[j]);
+                add_pair::<true>(
+                    (xa, ya, ga),
+                    (xb[j], yb[j], gb[j]),
+                    delta_sq,
+                    au,
+                    av,
+                    ub,
+                    vb,
+                );
+            }
+        } else {
+            for j in 0..LANES {
+                let (au, av, ub, vb) = (&mut au[j], &mut av[j], &mut ubb[j], &mut vbb[j]);
+                add_pair::<false>(
+                    (xa, ya, ga),
+                    (xb[j], yb[j], gb[j]),
+                    delta_sq,
+                    au,
+                    av,
+                    ub,
+                    vb,
+                );
+            }
         }
     }
     (
