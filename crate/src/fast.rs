@@ -508,37 +508,17 @@ fn block_row(
     let mut av = [0.0; LANES];
     for bl in 0..blocks {
         let k = bl * LANES;
-        let xb: &[f64; LANES] = xs[k..k + LANES].try_into().expect("one block");
-        let yb: &[f64; LANES] = ys[k..k + LANES].try_into().expect("one block");
-        let gb: &[f64; LANES] = gs[k..k + LANES].try_into().expect("one block");
+        let block = |col: &[f64; LEAF]| -> [f64; LANES] {
+            col[k..k + LANES].try_into().expect("one block")
+        };
+        let b = (block(xs), block(ys), block(gs));
         let ubb: &mut [f64; LANES] = (&mut ub[k..k + LANES]).try_into().expect("one block");
         let vbb: &mut [f64; LANES] = (&mut vb[k..k + LANES]).try_into().expect("one block");
+        let a = (xa, ya, ga);
         if shielded(bl) {
-            for j in 0..LANES {
-                let (au, av, ub, vb) = (&mut au[j], &mut av[j], &mut ubb[j], &mut vbb[j]);
-                add_pair::<true>(
-                    (xa, ya, ga),
-                    (xb[j], yb[j], gb[j]),
-                    delta_sq,
-                    au,
-                    av,
-                    ub,
-                    vb,
-                );
-            }
+            pair_block::<true>(a, b, delta_sq, (&mut au, &mut av), (ubb, vbb));
         } else {
-            for j in 0..LANES {
-                let (au, av, ub, vb) = (&mut au[j], &mut av[j], &mut ubb[j], &mut vbb[j]);
-                add_pair::<false>(
-                    (xa, ya, ga),
-                    (xb[j], yb[j], gb[j]),
-                    delta_sq,
-                    au,
-                    av,
-                    ub,
-                    vb,
-                );
-            }
+            pair_block::<false>(a, b, delta_sq, (&mut au, &mut av), (ubb, vbb));
         }
     }
     (
@@ -597,27 +577,47 @@ fn mutual_self(c: Columns, a: &Cell, delta_sq: f64, u: &mut [f64], v: &mut [f64]
     let (lo, hi) = (a.start, a.end);
     let n = hi - lo;
     assert!(n <= LEAF, "a leaf holds at most LEAF elements");
-    let (xs, ys, gs) = (&c.x[lo..hi], &c.y[lo..hi], &c.gamma[lo..hi]);
-    let mut ub = [0.0; LEAF];
-    let mut vb = [0.0; LEAF];
+    if n == 0 {
+        return;
+    }
+    // The blobs in fixed-size arrays, padded by a block of blobs of zero strength at the last
+    // blob, so that every row runs in whole blocks with known bounds and vectorises: a padded
+    // lane adds a zero to blob i's sum (which leaves it as it was) and its own sums are dropped.
+    const PADDED: usize = LEAF + LANES;
+    let (mut xs, mut ys, mut gs) = ([0.0; PADDED], [0.0; PADDED], [0.0; PADDED]);
+    xs[..n].copy_from_slice(&c.x[lo..hi]);
+    ys[..n].copy_from_slice(&c.y[lo..hi]);
+    gs[..n].copy_from_slice(&c.gamma[lo..hi]);
+    for k in n..PADDED {
+        xs[k] = xs[n - 1];
+        ys[k] = ys[n - 1];
+    }
+    let mut ub = [0.0; PADDED];
+    let mut vb = [0.0; PADDED];
     for i in 0..n {
-        let (xa, ya, ga) = (xs[i], ys[i], gs[i]);
         let mut au = [0.0; LANES];
         let mut av = [0.0; LANES];
         let first = i + 1;
-        let blocks = (n - first) / LANES;
-        for bl in 0..blocks {
+        for bl in 0..(n - first).div_ceil(LANES) {
             let k = first + bl * LANES;
-            for j in 0..LANES {
-                let b = (xs[k + j], ys[k + j], gs[k + j]);
-                let (ubk, vbk) = (&mut ub[k + j], &mut vb[k + j]);
-                add_pair::<true>((xa, ya, ga), b, delta_sq, &mut au[j], &mut av[j], ubk, vbk);
+            let block = |col: &[f64; PADDED]| -> [f64; LANES] {
+                col[k..k + LANES].try_into().expect("one block")
+            };
+            let ubb: &mut [f64; LANES] = (&mut ub[k..k + LANES]).try_into().expect("one block");
+            let vbb: &mut [f64; LANES] = (&mut vb[k..k + LANES]).try_into().expect("one block");
+            let a = (xs[i], ys[i], gs[i]);
+            let b = (block(&xs), block(&ys), block(&gs));
+            // A block whose blobs are all six cores or more from blob i needs no exponentials
+            // (the shield is exactly 1 there, as in `pair_kernel`).
+            let clear = (0..LANES).all(|j| {
+                let (dx, dy) = (a.0 - b.0[j], a.1 - b.1[j]);
+                dx * dx + dy * dy >= 36.0 * delta_sq
+            });
+            if clear {
+                pair_block::<false>(a, b, delta_sq, (&mut au, &mut av), (ubb, vbb));
+            } else {
+                pair_block::<true>(a, b, delta_sq, (&mut au, &mut av), (ubb, vbb));
             }
-        }
-        for (j, k) in (first + blocks * LANES..n).enumerate() {
-            let b = (xs[k], ys[k], gs[k]);
-            let (ubk, vbk) = (&mut ub[k], &mut vb[k]);
-            add_pair::<true>((xa, ya, ga), b, delta_sq, &mut au[j], &mut av[j], ubk, vbk);
         }
         ub[i] += (au[0] + au[1]) + (au[2] + au[3]);
         vb[i] += (av[0] + av[1]) + (av[2] + av[3]);
@@ -625,6 +625,24 @@ fn mutual_self(c: Columns, a: &Cell, delta_sq: f64, u: &mut [f64], v: &mut [f64]
     for j in 0..n {
         u[lo + j] += ub[j];
         v[lo + j] += vb[j];
+    }
+}
+
+/// [`add_pair`] for blob a and each blob of a block of [`LANES`] (lane `j` of the sums takes
+/// blob `j`).
+#[inline(always)]
+fn pair_block<const SHIELD: bool>(
+    a: (f64, f64, f64),
+    (xb, yb, gb): ([f64; LANES], [f64; LANES], [f64; LANES]),
+    delta_sq: f64,
+    (au, av): (&mut [f64; LANES], &mut [f64; LANES]),
+    (ub, vb): (&mut [f64; LANES], &mut [f64; LANES]),
+) {
+    for j in 0..LANES {
+        let b = (xb[j], yb[j], gb[j]);
+        add_pair::<SHIELD>(
+            a, b, delta_sq, &mut au[j], &mut av[j], &mut ub[j], &mut vb[j],
+        );
     }
 }
 
