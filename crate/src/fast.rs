@@ -530,6 +530,11 @@ fn block_row(
 /// Adds one pair's kernel to both blobs: to the lane sums `au`, `av` of blob a at `(xa, ya)`
 /// of circulation `ga` from blob b at `(xb, yb)` of circulation `gb`, and the opposite to b's
 /// sums `ub`, `vb` (see [`pair_kernel`]).
+// The wasm32 SIMD build uses `simd::pair_kernel` in `pair_block` instead.
+#[cfg_attr(
+    all(target_arch = "wasm32", target_feature = "simd128"),
+    allow(dead_code)
+)]
 #[inline(always)]
 #[allow(clippy::too_many_arguments)]
 fn add_pair<const SHIELD: bool>(
@@ -554,6 +559,11 @@ fn add_pair<const SHIELD: bool>(
 /// s/m^2. The blob kernel of [`velocity_range`] for a pair at `(dx, dy)` of squared core `d2`:
 /// the shield `1 - exp(-r^2 / d2)` (1 from six cores on, or everywhere without `SHIELD`) over
 /// `2 pi r^2`, zero for coincident blobs.
+// The wasm32 SIMD build uses `simd::pair_kernel` in `pair_block` instead.
+#[cfg_attr(
+    all(target_arch = "wasm32", target_feature = "simd128"),
+    allow(dead_code)
+)]
 #[inline(always)]
 fn pair_kernel<const SHIELD: bool>(dx: f64, dy: f64, d2: f64) -> f64 {
     let r2 = dx * dx + dy * dy;
@@ -630,6 +640,7 @@ fn mutual_self(c: Columns, a: &Cell, delta_sq: f64, u: &mut [f64], v: &mut [f64]
 
 /// [`add_pair`] for blob a and each blob of a block of [`LANES`] (lane `j` of the sums takes
 /// blob `j`).
+#[cfg(not(all(target_arch = "wasm32", target_feature = "simd128")))]
 #[inline(always)]
 fn pair_block<const SHIELD: bool>(
     a: (f64, f64, f64),
@@ -643,6 +654,92 @@ fn pair_block<const SHIELD: bool>(
         add_pair::<SHIELD>(
             a, b, delta_sq, &mut au[j], &mut av[j], &mut ub[j], &mut vb[j],
         );
+    }
+}
+
+/// [`add_pair`] for blob a and each blob of a block of [`LANES`], written out in 128-bit SIMD
+/// for wasm32 (the compiler leaves the scalar form unvectorised there): the same IEEE
+/// operations in the same order on each lane, so the same bits as the native build
+/// (`tests/wasm/parity.test.mjs`).
+#[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+#[inline(always)]
+fn pair_block<const SHIELD: bool>(
+    a: (f64, f64, f64),
+    (xb, yb, gb): ([f64; LANES], [f64; LANES], [f64; LANES]),
+    delta_sq: f64,
+    (au, av): (&mut [f64; LANES], &mut [f64; LANES]),
+    (ub, vb): (&mut [f64; LANES], &mut [f64; LANES]),
+) {
+    use core::arch::wasm32::*;
+    let (xa, ya, ga) = (f64x2_splat(a.0), f64x2_splat(a.1), f64x2_splat(a.2));
+    let d2 = f64x2_splat(delta_sq);
+    for h in 0..LANES / 2 {
+        let (i, j) = (2 * h, 2 * h + 1);
+        let pair = |v: &[f64; LANES]| f64x2(v[i], v[j]);
+        let dx = f64x2_sub(xa, pair(&xb));
+        let dy = f64x2_sub(ya, pair(&yb));
+        let f = simd::pair_kernel::<SHIELD>(dx, dy, d2);
+        let fa = f64x2_mul(pair(&gb), f);
+        let su = f64x2_add(pair(au), f64x2_mul(f64x2_neg(fa), dy));
+        let sv = f64x2_add(pair(av), f64x2_mul(fa, dx));
+        let fb = f64x2_mul(ga, f);
+        let tu = f64x2_add(pair(ub), f64x2_mul(fb, dy));
+        let tv = f64x2_sub(pair(vb), f64x2_mul(fb, dx));
+        for (out, w) in [
+            (&mut *au, su),
+            (&mut *av, sv),
+            (&mut *ub, tu),
+            (&mut *vb, tv),
+        ] {
+            out[i] = f64x2_extract_lane::<0>(w);
+            out[j] = f64x2_extract_lane::<1>(w);
+        }
+    }
+}
+
+/// [`pair_kernel`] and [`exp_nonpositive`] on two lanes of wasm32 SIMD, operation for operation.
+#[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+mod simd {
+    use super::{INV_FACTORIAL, PI};
+    use core::arch::wasm32::*;
+
+    #[inline(always)]
+    pub(super) fn pair_kernel<const SHIELD: bool>(dx: v128, dy: v128, d2: v128) -> v128 {
+        let r2 = f64x2_add(f64x2_mul(dx, dx), f64x2_mul(dy, dy));
+        let inv = f64x2_div(f64x2_splat(1.0), f64x2_mul(f64x2_splat(2.0 * PI), r2));
+        let inv = v128_and(inv, f64x2_gt(r2, f64x2_splat(0.0)));
+        if SHIELD {
+            let inside = f64x2_lt(r2, f64x2_mul(f64x2_splat(36.0), d2));
+            let arg = v128_bitselect(f64x2_div(f64x2_neg(r2), d2), f64x2_splat(-36.0), inside);
+            let e = exp_nonpositive(arg);
+            let shield = v128_bitselect(f64x2_sub(f64x2_splat(1.0), e), f64x2_splat(1.0), inside);
+            f64x2_mul(shield, inv)
+        } else {
+            inv
+        }
+    }
+
+    #[inline(always)]
+    fn exp_nonpositive(x: v128) -> v128 {
+        const LN2_HI: f64 = f64::from_bits(0x3fe6_2e42_fee0_0000);
+        const LN2_LO: f64 = f64::from_bits(0x3dea_39ef_3579_3c76);
+        const SHIFT: f64 = 6_755_399_441_055_744.0;
+        let t = f64x2_add(
+            f64x2_mul(x, f64x2_splat(std::f64::consts::LOG2_E)),
+            f64x2_splat(SHIFT),
+        );
+        let k = f64x2_sub(t, f64x2_splat(SHIFT));
+        let r = f64x2_sub(
+            f64x2_sub(x, f64x2_mul(k, f64x2_splat(LN2_HI))),
+            f64x2_mul(k, f64x2_splat(LN2_LO)),
+        );
+        let mut e = f64x2_splat(INV_FACTORIAL[13]);
+        for c in INV_FACTORIAL[1..13].iter().rev() {
+            e = f64x2_add(f64x2_splat(*c), f64x2_mul(r, e));
+        }
+        e = f64x2_add(f64x2_splat(1.0), f64x2_mul(r, e));
+        let scale = i64x2_shl(i64x2_add(t, i64x2_splat(1023)), 52);
+        f64x2_mul(e, scale)
     }
 }
 
