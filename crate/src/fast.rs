@@ -639,8 +639,9 @@ fn mutual_self(c: Columns, a: &Cell, delta_sq: f64, u: &mut [f64], v: &mut [f64]
 }
 
 /// [`add_pair`] for blob a and each blob of a block of [`LANES`] (lane `j` of the sums takes
-/// blob `j`).
-#[cfg(not(all(target_arch = "wasm32", target_feature = "simd128")))]
+/// blob `j`). In wasm32 it is written out in 128-bit SIMD (the compiler leaves the scalar form
+/// unvectorised there): the same IEEE operations in the same order on each lane, so the same
+/// bits as the native build (`tests/wasm/parity.test.mjs`).
 #[inline(always)]
 fn pair_block<const SHIELD: bool>(
     a: (f64, f64, f64),
@@ -649,50 +650,39 @@ fn pair_block<const SHIELD: bool>(
     (au, av): (&mut [f64; LANES], &mut [f64; LANES]),
     (ub, vb): (&mut [f64; LANES], &mut [f64; LANES]),
 ) {
+    #[cfg(not(all(target_arch = "wasm32", target_feature = "simd128")))]
     for j in 0..LANES {
         let b = (xb[j], yb[j], gb[j]);
         add_pair::<SHIELD>(
             a, b, delta_sq, &mut au[j], &mut av[j], &mut ub[j], &mut vb[j],
         );
     }
-}
-
-/// [`add_pair`] for blob a and each blob of a block of [`LANES`], written out in 128-bit SIMD
-/// for wasm32 (the compiler leaves the scalar form unvectorised there): the same IEEE
-/// operations in the same order on each lane, so the same bits as the native build
-/// (`tests/wasm/parity.test.mjs`).
-#[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
-#[inline(always)]
-fn pair_block<const SHIELD: bool>(
-    a: (f64, f64, f64),
-    (xb, yb, gb): ([f64; LANES], [f64; LANES], [f64; LANES]),
-    delta_sq: f64,
-    (au, av): (&mut [f64; LANES], &mut [f64; LANES]),
-    (ub, vb): (&mut [f64; LANES], &mut [f64; LANES]),
-) {
-    use core::arch::wasm32::*;
-    let (xa, ya, ga) = (f64x2_splat(a.0), f64x2_splat(a.1), f64x2_splat(a.2));
-    let d2 = f64x2_splat(delta_sq);
-    for h in 0..LANES / 2 {
-        let (i, j) = (2 * h, 2 * h + 1);
-        let pair = |v: &[f64; LANES]| f64x2(v[i], v[j]);
-        let dx = f64x2_sub(xa, pair(&xb));
-        let dy = f64x2_sub(ya, pair(&yb));
-        let f = simd::pair_kernel::<SHIELD>(dx, dy, d2);
-        let fa = f64x2_mul(pair(&gb), f);
-        let su = f64x2_add(pair(au), f64x2_mul(f64x2_neg(fa), dy));
-        let sv = f64x2_add(pair(av), f64x2_mul(fa, dx));
-        let fb = f64x2_mul(ga, f);
-        let tu = f64x2_add(pair(ub), f64x2_mul(fb, dy));
-        let tv = f64x2_sub(pair(vb), f64x2_mul(fb, dx));
-        for (out, w) in [
-            (&mut *au, su),
-            (&mut *av, sv),
-            (&mut *ub, tu),
-            (&mut *vb, tv),
-        ] {
-            out[i] = f64x2_extract_lane::<0>(w);
-            out[j] = f64x2_extract_lane::<1>(w);
+    #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+    {
+        use core::arch::wasm32::*;
+        let (xa, ya, ga) = (f64x2_splat(a.0), f64x2_splat(a.1), f64x2_splat(a.2));
+        let d2 = f64x2_splat(delta_sq);
+        for h in 0..LANES / 2 {
+            let (i, j) = (2 * h, 2 * h + 1);
+            let pair = |v: &[f64; LANES]| f64x2(v[i], v[j]);
+            let dx = f64x2_sub(xa, pair(&xb));
+            let dy = f64x2_sub(ya, pair(&yb));
+            let f = simd::pair_kernel::<SHIELD>(dx, dy, d2);
+            let fa = f64x2_mul(pair(&gb), f);
+            let su = f64x2_add(pair(au), f64x2_mul(f64x2_neg(fa), dy));
+            let sv = f64x2_add(pair(av), f64x2_mul(fa, dx));
+            let fb = f64x2_mul(ga, f);
+            let tu = f64x2_add(pair(ub), f64x2_mul(fb, dy));
+            let tv = f64x2_sub(pair(vb), f64x2_mul(fb, dx));
+            for (out, w) in [
+                (&mut *au, su),
+                (&mut *av, sv),
+                (&mut *ub, tu),
+                (&mut *vb, tv),
+            ] {
+                out[i] = f64x2_extract_lane::<0>(w);
+                out[j] = f64x2_extract_lane::<1>(w);
+            }
         }
     }
 }
