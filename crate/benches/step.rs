@@ -46,7 +46,7 @@ fn main() {
         let base = *first.get_or_insert(ms);
         println!("{n:>10} {ms:>14.3} {:>12.2}", ms / base);
         if target == 4000 {
-            breakdown(&case, &mut sim, ms);
+            breakdown(&mut sim, ms);
         }
     }
     // Ten cycles of the default tandem case, as a user runs it.
@@ -65,7 +65,7 @@ fn main() {
 }
 
 /// The 4,000-particle step on one thread and where its time goes (see the module doc).
-fn breakdown(case: &Case, sim: &mut Simulation, all_cores_ms: f64) {
+fn breakdown(sim: &mut Simulation, all_cores_ms: f64) {
     // Inside a pool of one thread every parallel loop of the solver runs sequentially.
     let one = rayon::ThreadPoolBuilder::new()
         .num_threads(1)
@@ -73,14 +73,9 @@ fn breakdown(case: &Case, sim: &mut Simulation, all_cores_ms: f64) {
         .expect("a pool of one thread");
     let n = sim.particles().0.len();
     let step_ms = one.install(|| fastest(4, || (0..4).for_each(|_| sim.step())));
-    // The wake as one set of blobs of the case's core (the solver leaves out the few newest
+    // The wake as one set of blobs of the solver's core (the solver leaves out the few newest
     // particles that form the near-wake panels, so this slightly overstates its share).
-    let chord = case
-        .foils
-        .iter()
-        .map(|f| f.chord)
-        .fold(f64::INFINITY, f64::min);
-    let delta_sq = (case.numerics.core_size * chord).powi(2);
+    let delta_sq = sim.core_radius().powi(2);
     let (x, y, g) = sim.particles();
     let mut wake = Elements::default();
     for k in 0..x.len() {

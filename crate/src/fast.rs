@@ -305,6 +305,17 @@ const INV_FACTORIAL: [f64; 14] = {
     t
 };
 
+/// musl's split of ln 2 for [`exp_nonpositive`]: the high part has 32 trailing zero bits, so
+/// `k * LN2_HI` is exact.
+const LN2_HI: f64 = f64::from_bits(0x3fe6_2e42_fee0_0000);
+const LN2_LO: f64 = f64::from_bits(0x3dea_39ef_3579_3c76);
+/// 1.5 * 2^52: adding it rounds to an integer, which then sits in the low mantissa bits.
+const SHIFT: f64 = 6_755_399_441_055_744.0;
+
+/// `r^2 / delta^2` from which the blob shield `1 - exp(-r^2 / delta^2)` is taken as exactly 1
+/// (six cores: `exp(-36)` is below the round-off of 1).
+const SHIELD_CUT_SQ: f64 = 36.0;
+
 /// `exp(x)` for `-40 <= x <= 0` in basic IEEE operations only (no table, no branch), so that it
 /// vectorises and rounds the same on every target: `x = k ln 2 + r` with `|r| <= ln 2 / 2`
 /// (Cody & Waite 1980 reduction, `ln 2` split as in musl's `exp`), `exp(r)` by its Taylor
@@ -312,11 +323,6 @@ const INV_FACTORIAL: [f64; 14] = {
 /// exponent bits. Within a few units in the last place of `libm::exp` (unit test).
 #[inline(always)]
 fn exp_nonpositive(x: f64) -> f64 {
-    // musl's split of ln 2: the high part has 32 trailing zero bits, so k * LN2_HI is exact.
-    const LN2_HI: f64 = f64::from_bits(0x3fe6_2e42_fee0_0000);
-    const LN2_LO: f64 = f64::from_bits(0x3dea_39ef_3579_3c76);
-    // 1.5 * 2^52: adding it rounds to an integer, which then sits in the low mantissa bits.
-    const SHIFT: f64 = 6_755_399_441_055_744.0;
     let t = x * std::f64::consts::LOG2_E + SHIFT;
     let k = t - SHIFT;
     let r = (x - k * LN2_HI) - k * LN2_LO;
@@ -361,8 +367,8 @@ fn velocity_range<const SRC: bool, const SHIELD: bool>(
         let r2 = dx * dx + dy * dy;
         let inv = if r2 > 0.0 { 1.0 / (2.0 * PI * r2) } else { 0.0 };
         let fg = if SHIELD {
-            let inside = r2 < 36.0 * d2;
-            let arg = if inside { -r2 / d2 } else { -36.0 };
+            let inside = r2 < SHIELD_CUT_SQ * d2;
+            let arg = if inside { -r2 / d2 } else { -SHIELD_CUT_SQ };
             let e = exp_nonpositive(arg);
             let shield = if inside { 1.0 - e } else { 1.0 };
             g * shield * inv
@@ -496,7 +502,7 @@ fn mutual_block<const SHIELD: bool>(
 /// `shielded(block)` holds (elsewhere every pair must be six cores or more apart).
 #[inline(always)]
 fn block_row(
-    (xa, ya, ga): (f64, f64, f64),
+    a: (f64, f64, f64),
     (xs, ys, gs): (&[f64; LEAF], &[f64; LEAF], &[f64; LEAF]),
     blocks: usize,
     delta_sq: f64,
@@ -514,7 +520,6 @@ fn block_row(
         let b = (block(xs), block(ys), block(gs));
         let ubb: &mut [f64; LANES] = (&mut ub[k..k + LANES]).try_into().expect("one block");
         let vbb: &mut [f64; LANES] = (&mut vb[k..k + LANES]).try_into().expect("one block");
-        let a = (xa, ya, ga);
         if shielded(bl) {
             pair_block::<true>(a, b, delta_sq, (&mut au, &mut av), (ubb, vbb));
         } else {
@@ -569,8 +574,8 @@ fn pair_kernel<const SHIELD: bool>(dx: f64, dy: f64, d2: f64) -> f64 {
     let r2 = dx * dx + dy * dy;
     let inv = if r2 > 0.0 { 1.0 / (2.0 * PI * r2) } else { 0.0 };
     if SHIELD {
-        let inside = r2 < 36.0 * d2;
-        let arg = if inside { -r2 / d2 } else { -36.0 };
+        let inside = r2 < SHIELD_CUT_SQ * d2;
+        let arg = if inside { -r2 / d2 } else { -SHIELD_CUT_SQ };
         let e = exp_nonpositive(arg);
         (if inside { 1.0 - e } else { 1.0 }) * inv
     } else {
@@ -621,7 +626,7 @@ fn mutual_self(c: Columns, a: &Cell, delta_sq: f64, u: &mut [f64], v: &mut [f64]
             // (the shield is exactly 1 there, as in `pair_kernel`).
             let clear = (0..LANES).all(|j| {
                 let (dx, dy) = (a.0 - b.0[j], a.1 - b.1[j]);
-                dx * dx + dy * dy >= 36.0 * delta_sq
+                dx * dx + dy * dy >= SHIELD_CUT_SQ * delta_sq
             });
             if clear {
                 pair_block::<false>(a, b, delta_sq, (&mut au, &mut av), (ubb, vbb));
@@ -690,7 +695,7 @@ fn pair_block<const SHIELD: bool>(
 /// [`pair_kernel`] and [`exp_nonpositive`] on two lanes of wasm32 SIMD, operation for operation.
 #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
 mod simd {
-    use super::{INV_FACTORIAL, PI};
+    use super::{INV_FACTORIAL, LN2_HI, LN2_LO, PI, SHIELD_CUT_SQ, SHIFT};
     use core::arch::wasm32::*;
 
     #[inline(always)]
@@ -699,8 +704,9 @@ mod simd {
         let inv = f64x2_div(f64x2_splat(1.0), f64x2_mul(f64x2_splat(2.0 * PI), r2));
         let inv = v128_and(inv, f64x2_gt(r2, f64x2_splat(0.0)));
         if SHIELD {
-            let inside = f64x2_lt(r2, f64x2_mul(f64x2_splat(36.0), d2));
-            let arg = v128_bitselect(f64x2_div(f64x2_neg(r2), d2), f64x2_splat(-36.0), inside);
+            let inside = f64x2_lt(r2, f64x2_mul(f64x2_splat(SHIELD_CUT_SQ), d2));
+            let cut = f64x2_splat(-SHIELD_CUT_SQ);
+            let arg = v128_bitselect(f64x2_div(f64x2_neg(r2), d2), cut, inside);
             let e = exp_nonpositive(arg);
             let shield = v128_bitselect(f64x2_sub(f64x2_splat(1.0), e), f64x2_splat(1.0), inside);
             f64x2_mul(shield, inv)
@@ -711,9 +717,6 @@ mod simd {
 
     #[inline(always)]
     fn exp_nonpositive(x: v128) -> v128 {
-        const LN2_HI: f64 = f64::from_bits(0x3fe6_2e42_fee0_0000);
-        const LN2_LO: f64 = f64::from_bits(0x3dea_39ef_3579_3c76);
-        const SHIFT: f64 = 6_755_399_441_055_744.0;
         let t = f64x2_add(
             f64x2_mul(x, f64x2_splat(std::f64::consts::LOG2_E)),
             f64x2_splat(SHIFT),

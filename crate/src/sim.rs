@@ -730,6 +730,11 @@ impl Simulation {
         self.velocity_at(p)
     }
 
+    /// m. Core radius of the wake's vortex blobs (`numerics.core_size` times the smallest chord).
+    pub fn core_radius(&self) -> f64 {
+        self.delta_sq.sqrt()
+    }
+
     /// Sum of all circulation: bound plus free (m^2/s); zero by Kelvin's theorem.
     pub fn total_circulation(&self) -> f64 {
         self.bodies.iter().map(|b| b.circulation).sum::<f64>() + self.wake.gamma.iter().sum::<f64>()
