@@ -1101,7 +1101,8 @@ impl Simulation {
             .flat_map(|(bi, b)| (0..b.panels()).map(move |j| (bi, j)))
             .collect();
         let m = owners.len();
-        let point_doublets: Vec<PointDoublets> = self.bodies.iter().map(PointDoublets::new).collect();
+        let point_doublets: Vec<PointDoublets> =
+            self.bodies.iter().map(PointDoublets::new).collect();
         // Rows are independent: assemble them on all cores into the kept buffer. Row `i` holds
         // the doublet influence of every other foil's panels on collocation point `i`
         // (trailing-edge panels included; the columns of its own foil are not used); each row
