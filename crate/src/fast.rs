@@ -1649,10 +1649,12 @@ pub(crate) fn span(pts: &[[f64; 2]]) -> ([f64; 2], f64) {
         hi = [larger(hi[0], p[0]), larger(hi[1], p[1])];
     }
     let centre = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
+    // One square root, as in `split`.
     let radius = pts
         .iter()
-        .map(|p| ((p[0] - centre[0]).powi(2) + (p[1] - centre[1]).powi(2)).sqrt())
-        .fold(0.0, larger);
+        .map(|p| (p[0] - centre[0]).powi(2) + (p[1] - centre[1]).powi(2))
+        .fold(0.0, larger)
+        .sqrt();
     (centre, radius)
 }
 
@@ -1728,10 +1730,13 @@ fn split(items: &mut [Item], offset: usize, cells: &mut Vec<Cell>, leaf: usize) 
         core = larger(core, it.delta_sq);
     }
     let centre = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
+    // One square root for the largest squared distance: a correctly rounded square root is
+    // monotonic, so this is exactly the largest distance.
     let radius = items
         .iter()
-        .map(|it| ((it.x - centre[0]).powi(2) + (it.y - centre[1]).powi(2)).sqrt())
-        .fold(0.0, larger);
+        .map(|it| (it.x - centre[0]).powi(2) + (it.y - centre[1]).powi(2))
+        .fold(0.0, larger)
+        .sqrt();
     let me = cells.len();
     let n = items.len();
     cells.push(Cell {
