@@ -863,15 +863,33 @@ impl Tables {
             }
             return;
         }
+        // Two rows at a time (n and n + 1 share the terms k <= n): each row's sum still runs
+        // over k in order, so the bits are those of one row at a time.
         let mut dn = C64::new(1.0, 0.0);
-        for (n, o) in out.iter_mut().enumerate() {
+        let len = out.len();
+        let mut n = 0;
+        while n + 1 < len {
+            let row = &self.binom[n * bw..n * bw + n + 1];
+            let next = &self.binom[(n + 1) * bw..(n + 1) * bw + n + 2];
+            let (mut acc, mut acc2) = (C64::new(0.0, 0.0), C64::new(0.0, 0.0));
+            for ((b, &c), &c2) in scaled[..=n].iter().zip(row).zip(next) {
+                acc += b * c;
+                acc2 += b * c2;
+            }
+            acc2 += scaled[n + 1] * next[n + 1];
+            out[n] += acc * dn;
+            dn *= d;
+            out[n + 1] += acc2 * dn;
+            dn *= d;
+            n += 2;
+        }
+        if n < len {
             let row = &self.binom[n * bw..n * bw + n + 1];
             let mut acc = C64::new(0.0, 0.0);
             for (b, &c) in scaled[..=n].iter().zip(row) {
                 acc += b * c;
             }
-            *o += acc * dn;
-            dn *= d;
+            out[n] += acc * dn;
         }
     }
 
@@ -1027,12 +1045,29 @@ impl Tree {
             let base = ci * (order + 1);
             match cell.children {
                 None => {
-                    for k in cell.start..cell.end {
+                    let term = |k: usize| {
                         let s = C64::new(tree.qs[k], -tree.gs[k]) / (2.0 * PI);
                         let xi = C64::new(tree.xs[k] - cell.centre[0], tree.ys[k] - cell.centre[1]);
-                        let mut pw = s;
-                        for m in 0..=order {
-                            tree.moments[base + m] += pw;
+                        (s, xi)
+                    };
+                    let out = &mut tree.moments[base..=base + order];
+                    // Two elements at a time: their chains of powers are independent, and each
+                    // moment still adds the elements in order (the same sums as one at a time).
+                    let mut k = cell.start;
+                    while k + 1 < cell.end {
+                        let ((mut pa, xa), (mut pb, xb)) = (term(k), term(k + 1));
+                        for m in out.iter_mut() {
+                            *m += pa;
+                            *m += pb;
+                            pa *= xa;
+                            pb *= xb;
+                        }
+                        k += 2;
+                    }
+                    if k < cell.end {
+                        let (mut pw, xi) = term(k);
+                        for m in out.iter_mut() {
+                            *m += pw;
                             pw *= xi;
                         }
                     }
