@@ -315,7 +315,8 @@ const loop = new Loop((dt, now) => {
     if (sps !== null) { e1.textContent = `${sps.toFixed(0)} solver steps/s`; e1.dataset.value = String(sps); }
     // Steps per second of wall time (the rate above counts the worker's computing time only).
     e1.dataset.wall = String((perf.steps * 1000) / elapsed);
-    e2.textContent = `${fps.toFixed(0)} frames/s`;
+    // Nothing changed to draw (paused or finished): say so rather than "0 frames/s".
+    e2.textContent = perf.draws === 0 && perf.steps === 0 ? "idle, nothing new to draw" : `${fps.toFixed(0)} frames/s`;
     e2.dataset.value = String(fps);
     e2.dataset.callbacks = String((perf.frames * 1000) / elapsed);
     Object.assign(perf, { steps: 0, stepMs: 0, draws: 0, frames: 0, since: now });
