@@ -258,6 +258,44 @@ impl BlobGroup {
         }
     }
 
+    /// Number of elements.
+    pub fn len(&self) -> usize {
+        self.elements.len()
+    }
+
+    /// True when the group holds no element.
+    pub fn is_empty(&self) -> bool {
+        self.elements.is_empty()
+    }
+
+    /// The group's multipole moments `a_0 ..= a_order` about the centre of its enclosing circle,
+    /// in the convention of [`FarField`].
+    pub fn moments(&self, order: usize) -> Vec<C64> {
+        let el = &self.elements;
+        let mut a = vec![C64::new(0.0, 0.0); order + 1];
+        for k in 0..el.len() {
+            let mut pw = C64::new(el.source[k], -el.gamma[k]) / (2.0 * PI);
+            let xi = C64::new(el.x[k] - self.centre[0], el.y[k] - self.centre[1]);
+            for m in a.iter_mut() {
+                *m += pw;
+                pw *= xi;
+            }
+        }
+        a
+    }
+
+    /// The group as a [`FarField`] of the moments `moments` (from [`BlobGroup::moments`]) for
+    /// relative tolerance `tolerance`: its blobs act as point vortices from the point-vortex
+    /// cut of the largest core.
+    pub fn far_field<'a>(&self, moments: &'a [C64], tolerance: f64) -> FarField<'a> {
+        FarField {
+            centre: self.centre,
+            radius: self.radius,
+            clearance: point_vortex_cut(tolerance) * self.core,
+            moments,
+        }
+    }
+
     /// m/s. Direct sum of the velocity at `p` (as [`Elements::velocity`]).
     pub fn velocity(&self, p: [f64; 2]) -> [f64; 2] {
         let el = &self.elements;
@@ -1296,12 +1334,34 @@ impl Tree {
     /// signs). Otherwise each leaf of the tree is a target leaf (see [`Tree::eval_points`]).
     /// Each part runs in a fixed order, so the result does not depend on the number of threads.
     pub fn velocity_at_elements(&self) -> Vec<[f64; 2]> {
+        self.velocity_at_elements_with(&[]).0
+    }
+
+    /// m/s. [`Tree::velocity_at_elements`], plus the velocity of the far fields `fields` (at
+    /// most 32) at every element far enough from each: such a far field enters the local expansion
+    /// of the largest cells clear of it (the same opening test, with its own clearance in place
+    /// of the cells' cores), and so costs nothing more per element. Also returns for each
+    /// element (in the order given) a mask with bit `s` set when far field `s` was not included
+    /// there; the caller adds it by its own means. (Every bit is set when the far fields' moments
+    /// are not of this tree's order, or the tree does not meet itself; see
+    /// [`Tree::velocity_at_elements`].)
+    pub fn velocity_at_elements_with(&self, fields: &[FarField]) -> (Vec<[f64; 2]>, Vec<u32>) {
+        assert!(fields.len() <= 32, "at most 32 far fields");
+        let all = if fields.is_empty() {
+            0
+        } else {
+            u32::MAX >> (32 - fields.len())
+        };
         let leaves: Vec<usize> = (0..self.cells.len())
             .filter(|&c| self.cells[c].children.is_none())
             .collect();
+        let n = self.xs.len();
         let Some(delta_sq) = self.uniform_delta_sq.filter(|_| !self.sources) else {
-            return self.velocity_at_elements_one_way(&leaves);
+            return (self.velocity_at_elements_one_way(&leaves), vec![all; n]);
         };
+        if fields.iter().any(|f| f.moments.len() != self.order + 1) {
+            return (self.velocity_at_elements(), vec![all; n]);
+        }
         let (far, near) = self.self_interactions();
         let ncells = self.cells.len();
         // Each cell's far sources, in the order of the traversal.
@@ -1323,6 +1383,33 @@ impl Tree {
                 }
                 (local, filled)
             });
+        // The far fields, each into the largest cells clear of it; the leaves it does not reach.
+        let mut missed = vec![0u32; ncells];
+        if !self.cells.is_empty() {
+            let mut scratch = M2lScratch::new(self.order);
+            let mut stack = Vec::new();
+            for (s, f) in fields.iter().enumerate() {
+                stack.push(0usize);
+                while let Some(ci) = stack.pop() {
+                    let cell = &self.cells[ci];
+                    let dist = ((cell.centre[0] - f.centre[0]).powi(2)
+                        + (cell.centre[1] - f.centre[1]).powi(2))
+                    .sqrt();
+                    let reach = cell.radius + f.radius;
+                    if reach < self.theta * dist && dist - reach > f.clearance {
+                        let (local, filled) = &mut locals[ci];
+                        let source = (f.moments, f.centre, f.radius);
+                        let got = self.m2l_from::<false>(source, cell, local, &mut scratch);
+                        *filled = (*filled).max(got);
+                    } else if let Some((a, b)) = cell.children {
+                        stack.push(b);
+                        stack.push(a);
+                    } else {
+                        missed[ci] |= 1 << s;
+                    }
+                }
+            }
+        }
         // Down the tree (a parent comes before its children): each child adds its parent's
         // expansion, re-expanded about its own centre (exact: a polynomial's Taylor shift).
         let mut scaled = Vec::new();
@@ -1347,9 +1434,12 @@ impl Tree {
                 }
             }
         }
-        let n = self.xs.len();
         let (mut u, mut v) = (vec![0.0; n], vec![0.0; n]);
+        let mut masks = vec![0u32; n];
         for &c in &leaves {
+            for k in self.cells[c].start..self.cells[c].end {
+                masks[self.index[k]] = missed[c];
+            }
             let cell = &self.cells[c];
             let (local, filled) = &locals[c];
             for k in cell.start..cell.end {
@@ -1400,7 +1490,7 @@ impl Tree {
         for k in 0..n {
             out[self.index[k]] = [u[k], v[k]];
         }
-        out
+        (out, masks)
     }
 
     /// The tree against itself: the far pairs `(target, source)` of cells (each unordered pair
@@ -1542,20 +1632,30 @@ impl Tree {
         scratch: &mut M2lScratch,
     ) -> usize {
         let cell = &self.cells[ci];
+        let a = &self.moments[ci * (self.order + 1)..(ci + 1) * (self.order + 1)];
+        self.m2l_from::<PSI>((a, cell.centre, cell.radius), target, local, scratch)
+    }
+
+    /// [`Tree::m2l`] from the moments `a` (the tree's order and convention) of a disc of centre
+    /// `centre` and radius `radius` (m).
+    #[inline(always)]
+    fn m2l_from<const PSI: bool>(
+        &self,
+        (a, centre, radius): (&[C64], [f64; 2], f64),
+        target: &Cell,
+        local: &mut [C64],
+        scratch: &mut M2lScratch,
+    ) -> usize {
         let M2lScratch { tpow, u, acc } = scratch;
         // d: from the source cell's centre to the target's centre.
-        let d = C64::new(
-            target.centre[0] - cell.centre[0],
-            target.centre[1] - cell.centre[1],
-        );
+        let d = C64::new(target.centre[0] - centre[0], target.centre[1] - centre[1]);
         let dist = (d.re * d.re + d.im * d.im).sqrt();
         // Two truncations, each to the tolerance: the cell's multipole series (its radius over
         // its distance from the nearest point of the target) and the target's Taylor series (its
         // radius over its distance from the nearest point of the cell); each ratio is below
         // theta.
-        let pm = self.order_for(cell.radius / (dist - target.radius));
-        let pl = self.order_for(target.radius / (dist - cell.radius));
-        let a = &self.moments[ci * (self.order + 1)..(ci + 1) * (self.order + 1)];
+        let pm = self.order_for(radius / (dist - target.radius));
+        let pl = self.order_for(target.radius / (dist - radius));
         let t = C64::new(1.0, 0.0) / d;
         // u_n = a_n t^n / n (n >= 1); tpow[l] = t^l.
         tpow[0] = C64::new(1.0, 0.0);
@@ -1660,6 +1760,23 @@ impl M2lScratch {
             acc: vec![zero; order + 2],
         }
     }
+}
+
+/// A far field for [`Tree::velocity_at_elements_with`]: the multipole moments `a_m` (m^(m+2)/s)
+/// of singularities within `radius` of `centre`, in the tree's convention (complex velocity
+/// `u - i v = sum_m a_m / (z - centre)^(m + 1)`, `a_m = sum_k s_k (z_k - centre)^m` with
+/// `s_k = (q_k - i gamma_k) / (2 pi)`), valid to the tree's tolerance at points more than
+/// `clearance` beyond the radius (the point-vortex cut of its blobs' cores).
+#[derive(Debug, Clone, Copy)]
+pub struct FarField<'a> {
+    /// m. Centre of the disc holding the singularities.
+    pub centre: [f64; 2],
+    /// m. Radius of that disc.
+    pub radius: f64,
+    /// m. Distance beyond the radius from which the expansion holds.
+    pub clearance: f64,
+    /// Moments `a_0 ..= a_order`, the tree's order.
+    pub moments: &'a [C64],
 }
 
 /// Velocity and stream function at a foil's nodes, and velocity at its panel midpoints.
@@ -1990,6 +2107,87 @@ mod tests {
                 worst / scale
             );
         }
+    }
+
+    #[test]
+    fn far_fields_in_the_local_expansions_match_direct_sums() {
+        // The sheet of the test above as the tree, and two small clusters of blobs as far
+        // fields, one among the sheet's last elements and one among its middle ones (most
+        // leaves far from each, some next to it). Where a mask bit says a far
+        // field was left out it is added directly, as the solver does; the total must match
+        // the direct sum over all three sets to the tolerance of the other tree tests.
+        let mut rnd = uniform(4242);
+        let mut sheet = Elements::default();
+        for k in 0..2500 {
+            let t = k as f64 / 2500.0;
+            let (r, a) = (0.05 + 0.4 * t, 30.0 * t);
+            let p = [2.0 * t + r * a.cos(), r * a.sin() + 0.01 * rnd()];
+            sheet.push(p, rnd() - 0.3, 0.0, 4e-4);
+        }
+        let tolerance = 1e-8;
+        let tree = Tree::new(&sheet, 0.5, tolerance);
+        let clusters: Vec<BlobGroup> = [2400, 1250]
+            .iter()
+            .map(|&at| {
+                let c = [sheet.x[at], sheet.y[at]];
+                let mut el = Elements::default();
+                for _ in 0..12 {
+                    let p = [c[0] + 0.02 * rnd(), c[1] + 0.02 * rnd()];
+                    el.push(p, rnd() - 0.5, 0.0, 4e-4);
+                }
+                BlobGroup::new(el)
+            })
+            .collect();
+        let moments: Vec<Vec<C64>> = clusters.iter().map(|g| g.moments(tree.order())).collect();
+        let fields: Vec<FarField> = clusters
+            .iter()
+            .zip(&moments)
+            .map(|(g, m)| g.far_field(m, tolerance))
+            .collect();
+        let (fast, masks) = tree.velocity_at_elements_with(&fields);
+        let mut worst: f64 = 0.0;
+        let mut scale: f64 = 0.0;
+        let mut counts = [[0usize; 2]; 2];
+        for k in 0..sheet.len() {
+            let p = [sheet.x[k], sheet.y[k]];
+            let mut w = fast[k];
+            let mut d = sheet.direct(p).0;
+            for (s, g) in clusters.iter().enumerate() {
+                let v = g.elements.direct(p).0;
+                d = [d[0] + v[0], d[1] + v[1]];
+                let missed = masks[k] & (1 << s) != 0;
+                counts[s][usize::from(missed)] += 1;
+                if missed {
+                    let v = g.velocity(p);
+                    w = [w[0] + v[0], w[1] + v[1]];
+                }
+            }
+            worst = worst.max(((w[0] - d[0]).powi(2) + (w[1] - d[1]).powi(2)).sqrt());
+            scale = scale.max((d[0] * d[0] + d[1] * d[1]).sqrt());
+        }
+        assert!(
+            worst / scale < 1e-7,
+            "velocity with far fields {}",
+            worst / scale
+        );
+        // Both paths were taken for both far fields.
+        for (s, c) in counts.iter().enumerate() {
+            assert!(
+                c[0] > 100 && c[1] > 10,
+                "far field {s}: included {} times, left out {}",
+                c[0],
+                c[1]
+            );
+        }
+        // Moments of another order are refused: every bit set, and the tree's own sums.
+        let short = [C64::new(0.0, 0.0); 3];
+        let wrong = [FarField {
+            moments: &short,
+            ..fields[0]
+        }];
+        let (same, all) = tree.velocity_at_elements_with(&wrong);
+        assert!(all.iter().all(|&m| m == 1));
+        assert_eq!(same, tree.velocity_at_elements());
     }
 
     #[test]

@@ -1489,35 +1489,71 @@ impl Simulation {
             self.bodies.iter().map(|b| self.body_expansion(b)).collect();
         // The tree holds the free particles of the start of the step (in index order; they have
         // not moved since) and gives their velocity with its own leaves as targets; the chained
-        // ones and this step's new ones are added directly, and evaluated one by one.
-        let mut direct = fast::Elements::default();
-        for i in chained.iter().copied().chain(new_from..np) {
-            let c = [self.wake.x[i], self.wake.y[i]];
-            direct.push(c, self.wake.gamma[i], 0.0, self.delta_sq);
-        }
-        // They sit near the trailing edges: most particles are six cores clear of them all.
-        let direct = fast::BlobGroup::new(direct);
-        let mut at_free = tree.velocity_at_elements().into_iter();
-        let from_tree: Vec<[f64; 2]> = (0..np)
+        // ones and this step's new ones are summed directly, one group for each foil (they sit
+        // near its trailing edge, so most particles are six cores clear of them all), and
+        // the chained and new ones are evaluated one by one.
+        let nb = self.bodies.len();
+        let groups: Vec<fast::BlobGroup> = (0..nb)
+            .map(|bi| {
+                let mut el = fast::Elements::default();
+                for i in chained.iter().copied().chain(new_from..np) {
+                    if self.wake.owner[i] == bi {
+                        let c = [self.wake.x[i], self.wake.y[i]];
+                        el.push(c, self.wake.gamma[i], 0.0, self.delta_sq);
+                    }
+                }
+                fast::BlobGroup::new(el)
+            })
+            .collect();
+        // Far from a foil (its whole expansion) or from a group (its moments), their velocity
+        // enters the tree's local expansions: bit `bi` of a particle's mask is foil `bi`, bit
+        // `nb + bi` group `bi`, set where the tree left it out and it is added here.
+        let order = tree.order();
+        let moments: Vec<Vec<Complex<f64>>> = groups.iter().map(|g| g.moments(order)).collect();
+        let mut far: Vec<fast::FarField> = expansions
+            .iter()
+            .map(|e| fast::FarField {
+                centre: e.whole.centre,
+                radius: e.whole.radius,
+                clearance: e.whole.clearance,
+                moments: &e.whole.moments,
+            })
+            .collect();
+        far.extend(
+            groups
+                .iter()
+                .zip(&moments)
+                .map(|(g, m)| g.far_field(m, TREE_TOLERANCE)),
+        );
+        let everything = u32::MAX >> (32 - far.len());
+        let (at_free, masks) = tree.velocity_at_elements_with(&far);
+        let mut at_free = at_free.into_iter().zip(masks);
+        let from_tree: Vec<([f64; 2], u32)> = (0..np)
             .map(|i| {
                 if i < new_from && !in_chain[i] {
                     at_free.next().expect("one tree element per free particle")
                 } else {
-                    tree.velocity([self.wake.x[i], self.wake.y[i]])
+                    (tree.velocity([self.wake.x[i], self.wake.y[i]]), everything)
                 }
             })
             .collect();
         let vel: Vec<[f64; 2]> = par_map(np, PARALLEL_PARTICLES, |i| {
             let p = [self.wake.x[i], self.wake.y[i]];
-            let mut u = from_tree[i];
-            let v = direct.velocity(p);
-            u[0] += v[0];
-            u[1] += v[1];
+            let (mut u, missed) = from_tree[i];
+            for (gi, g) in groups.iter().enumerate() {
+                if missed & (1 << (nb + gi)) != 0 && !g.is_empty() {
+                    let v = g.velocity(p);
+                    u[0] += v[0];
+                    u[1] += v[1];
+                }
+            }
             u[0] += self.speed;
-            for (b, e) in self.bodies.iter().zip(&expansions) {
-                let v = self.body_velocity(b, e, p);
-                u[0] += v[0];
-                u[1] += v[1];
+            for (bi, (b, e)) in self.bodies.iter().zip(&expansions).enumerate() {
+                if missed & (1 << bi) != 0 {
+                    let v = self.body_velocity(b, e, p);
+                    u[0] += v[0];
+                    u[1] += v[1];
+                }
             }
             u
         });
