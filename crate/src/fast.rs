@@ -286,10 +286,15 @@ impl BlobGroup {
 
     /// The group as a [`FarField`] of the moments `moments` (from [`BlobGroup::moments`]) for
     /// relative tolerance `tolerance`: its blobs act as point vortices from the point-vortex
-    /// cut of the largest core.
+    /// cut of the largest core. (An empty group has no enclosing circle; its far field, zero,
+    /// is put at the origin.)
     pub fn far_field<'a>(&self, moments: &'a [C64], tolerance: f64) -> FarField<'a> {
         FarField {
-            centre: self.centre,
+            centre: if self.is_empty() {
+                [0.0, 0.0]
+            } else {
+                self.centre
+            },
             radius: self.radius,
             clearance: point_vortex_cut(tolerance) * self.core,
             moments,

@@ -1525,7 +1525,6 @@ impl Simulation {
                 .zip(&moments)
                 .map(|(g, m)| g.far_field(m, TREE_TOLERANCE)),
         );
-        let everything = u32::MAX >> (32 - far.len());
         let (at_free, masks) = tree.velocity_at_elements_with(&far);
         let mut at_free = at_free.into_iter().zip(masks);
         let from_tree: Vec<([f64; 2], u32)> = (0..np)
@@ -1533,7 +1532,7 @@ impl Simulation {
                 if i < new_from && !in_chain[i] {
                     at_free.next().expect("one tree element per free particle")
                 } else {
-                    (tree.velocity([self.wake.x[i], self.wake.y[i]]), everything)
+                    (tree.velocity([self.wake.x[i], self.wake.y[i]]), u32::MAX)
                 }
             })
             .collect();
