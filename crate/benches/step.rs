@@ -74,7 +74,9 @@ fn breakdown(sim: &mut Simulation, all_cores_ms: f64) {
     let n = sim.particles().0.len();
     let step_ms = one.install(|| fastest(4, || (0..4).for_each(|_| sim.step())));
     // The wake as one set of blobs of the solver's core (the solver leaves out the few newest
-    // particles that form the near-wake panels, so this slightly overstates its share).
+    // particles that form the near-wake panels, so this slightly overstates its share; the
+    // solver's call also carries the foils' and near-wake blobs' far fields, a few dozen
+    // translations more, which this leaves in the rest).
     let delta_sq = sim.core_radius().powi(2);
     let (x, y, g) = sim.particles();
     let mut wake = Elements::default();

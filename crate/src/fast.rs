@@ -258,11 +258,6 @@ impl BlobGroup {
         }
     }
 
-    /// Number of elements.
-    pub fn len(&self) -> usize {
-        self.elements.len()
-    }
-
     /// True when the group holds no element.
     pub fn is_empty(&self) -> bool {
         self.elements.is_empty()
@@ -271,16 +266,14 @@ impl BlobGroup {
     /// The group's multipole moments `a_0 ..= a_order` about the centre of its enclosing circle,
     /// in the convention of [`FarField`].
     pub fn moments(&self, order: usize) -> Vec<C64> {
-        let el = &self.elements;
         let mut a = vec![C64::new(0.0, 0.0); order + 1];
-        for k in 0..el.len() {
-            let mut pw = C64::new(el.source[k], -el.gamma[k]) / (2.0 * PI);
-            let xi = C64::new(el.x[k] - self.centre[0], el.y[k] - self.centre[1]);
-            for m in a.iter_mut() {
-                *m += pw;
-                pw *= xi;
-            }
-        }
+        add_moments(
+            self.elements.columns(),
+            0,
+            self.elements.len(),
+            self.centre,
+            &mut a,
+        );
         a
     }
 
@@ -1088,32 +1081,24 @@ impl Tree {
             let base = ci * (order + 1);
             match cell.children {
                 None => {
-                    let term = |k: usize| {
-                        let s = C64::new(tree.qs[k], -tree.gs[k]) / (2.0 * PI);
-                        let xi = C64::new(tree.xs[k] - cell.centre[0], tree.ys[k] - cell.centre[1]);
-                        (s, xi)
+                    let Tree {
+                        xs,
+                        ys,
+                        gs,
+                        qs,
+                        d2s,
+                        moments,
+                        ..
+                    } = &mut tree;
+                    let columns = Columns {
+                        x: xs,
+                        y: ys,
+                        gamma: gs,
+                        source: qs,
+                        delta_sq: d2s,
                     };
-                    let out = &mut tree.moments[base..=base + order];
-                    // Two elements at a time: their chains of powers are independent, and each
-                    // moment still adds the elements in order (the same sums as one at a time).
-                    let mut k = cell.start;
-                    while k + 1 < cell.end {
-                        let ((mut pa, xa), (mut pb, xb)) = (term(k), term(k + 1));
-                        for m in out.iter_mut() {
-                            *m += pa;
-                            *m += pb;
-                            pa *= xa;
-                            pb *= xb;
-                        }
-                        k += 2;
-                    }
-                    if k < cell.end {
-                        let (mut pw, xi) = term(k);
-                        for m in out.iter_mut() {
-                            *m += pw;
-                            pw *= xi;
-                        }
-                    }
+                    let out = &mut moments[base..=base + order];
+                    add_moments(columns, cell.start, cell.end, cell.centre, out);
                 }
                 Some((a, b)) => {
                     for child in [a, b] {
@@ -1442,12 +1427,10 @@ impl Tree {
         let (mut u, mut v) = (vec![0.0; n], vec![0.0; n]);
         let mut masks = vec![0u32; n];
         for &c in &leaves {
-            for k in self.cells[c].start..self.cells[c].end {
-                masks[self.index[k]] = missed[c];
-            }
             let cell = &self.cells[c];
             let (local, filled) = &locals[c];
             for k in cell.start..cell.end {
+                masks[self.index[k]] = missed[c];
                 let p = [self.xs[k], self.ys[k]];
                 let (w, _) = local_at::<false>(cell.centre, &local[..=*filled], p);
                 u[k] = w[0];
@@ -1813,6 +1796,36 @@ pub(crate) fn span(pts: &[[f64; 2]]) -> ([f64; 2], f64) {
         .fold(0.0, larger)
         .sqrt();
     (centre, radius)
+}
+
+/// Adds the multipole moments about `centre` of elements `lo..hi` to `out` (`a_m` for
+/// m = 0..out.len(), in the convention of [`FarField`]). Two elements at a time: their chains of
+/// powers are independent, and each moment still adds the elements in order (the same sums as
+/// one at a time).
+fn add_moments(c: Columns, lo: usize, hi: usize, centre: [f64; 2], out: &mut [C64]) {
+    let term = |k: usize| {
+        let s = C64::new(c.source[k], -c.gamma[k]) / (2.0 * PI);
+        let xi = C64::new(c.x[k] - centre[0], c.y[k] - centre[1]);
+        (s, xi)
+    };
+    let mut k = lo;
+    while k + 1 < hi {
+        let ((mut pa, xa), (mut pb, xb)) = (term(k), term(k + 1));
+        for m in out.iter_mut() {
+            *m += pa;
+            *m += pb;
+            pa *= xa;
+            pb *= xb;
+        }
+        k += 2;
+    }
+    if k < hi {
+        let (mut pw, xi) = term(k);
+        for m in out.iter_mut() {
+            *m += pw;
+            pw *= xi;
+        }
+    }
 }
 
 /// A leaf cell around `pts` (see [`span`]).
