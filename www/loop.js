@@ -1,7 +1,11 @@
 // The animation loop: requestAnimationFrame drives everything on the page's thread. The solver
 // runs in a worker; each frame asks it for as many fixed time steps as real time times the speed
 // factor calls for (capped, so a slow machine falls behind instead of spiralling), with at most
-// one request in flight. The physics time step comes from the case, never from the frame time.
+// one request in flight. At the fastest speed ("max") two batches are kept in flight (main.js),
+// each about two display frames of work, so that the worker never waits for the page: the view is
+// redrawn about every other frame (on a 2-core machine drawing every frame took more from the
+// solver than it gave; measured in the page, see DEVELOPERS.md). The physics time step comes from
+// the case, never from the frame time.
 
 export class Loop {
   /** @param {(dtSeconds: number, nowMs: number) => void} onFrame */
@@ -24,6 +28,7 @@ export class StepPacer {
   constructor() {
     this.accumulated = 0; // s of simulated time owed
     this.msPerStep = 5; // running estimate from the worker's timings
+    this.frameMs = 1000 / 60; // running estimate of the display's frame interval
   }
   reset() { this.accumulated = 0; }
   /** Notes a finished batch. */
@@ -37,7 +42,7 @@ export class StepPacer {
    * @returns {{steps: number, budgetMs: number}}
    */
   next(dtReal, speed, timeStep) {
-    if (speed === "max") return { steps: 1e6, budgetMs: 30 };
+    if (speed === "max") return this.fastest();
     const cap = Math.max(1, Math.floor(40 / Math.max(0.05, this.msPerStep)));
     this.accumulated += dtReal * speed;
     let steps = Math.floor(this.accumulated / timeStep + 1e-9);
@@ -49,5 +54,14 @@ export class StepPacer {
       this.accumulated -= steps * timeStep;
     }
     return { steps, budgetMs: 45 };
+  }
+  /** Notes the real time (s) since the last animation frame; called on every frame. */
+  frame(dtReal) {
+    if (dtReal > 0) this.frameMs = 0.9 * this.frameMs + 0.1 * Math.min(100, dtReal * 1000);
+  }
+  /** A batch at the fastest speed: as many steps as fit in two display frames less 3 ms (at least
+   * one step; the worker stops before a step that would overrun the budget). */
+  fastest() {
+    return { steps: 1e6, budgetMs: Math.max(4, 2 * this.frameMs - 3) };
   }
 }

@@ -58,7 +58,7 @@ let token = 0; // newest start request
 let activeToken = -1; // the run the worker is stepping
 const pending = new Map(); // token -> candidate case
 let run = null; // facts of the active run
-let inFlight = false;
+let inFlight = 0; // batches asked for and not yet answered
 let stepOnce = false;
 let refToken = 0;
 let refSummaries = [];
@@ -214,7 +214,7 @@ function started(msg) {
 }
 
 function frame(msg) {
-  inFlight = false;
+  inFlight = Math.max(0, inFlight - 1);
   if (msg.stale || msg.token !== activeToken || !run) return;
   pacer.observe(msg.steps, msg.stepMs);
   perf.steps += msg.steps;
@@ -243,6 +243,8 @@ function frame(msg) {
     run.finished = true;
     setRunState();
   }
+  // At the fastest speed the next batch goes at once, not at the next animation frame.
+  keepFastestGoing();
 }
 
 function onReference(msg) {
@@ -286,14 +288,31 @@ function setRunState() {
   $("run-state").textContent = s === "finished" ? `finished: all ${run.totalSteps} steps (Reset runs it again)` : s === "running" ? "running" : "paused";
 }
 
+/** Whether a batch of steps may be asked for now: a run that can go on, no case change waiting,
+ * and fewer than `limit` batches in flight. */
+function canRequest(limit = 1) {
+  return !faulted && run && !run.finished && inFlight < limit && pending.size === 0;
+}
+
+/** At the fastest speed two batches are kept in flight, so that the worker starts the next as
+ * soon as it has posted one, while the page takes in and draws that one (see loop.js). */
+function keepFastestGoing() {
+  while (state.running && state.speed === "max" && !stepOnce && canRequest(2)) {
+    const { steps, budgetMs } = pacer.fastest();
+    request(steps, budgetMs);
+  }
+}
+
 function request(steps, budgetMs) {
-  inFlight = true;
+  inFlight += 1;
   main.post({ type: "advance", token: activeToken, steps, budgetMs });
 }
 
 const loop = new Loop((dt, now) => {
   perf.frames += 1;
-  if (!faulted && run && !run.finished && !inFlight && pending.size === 0) {
+  pacer.frame(dt);
+  if (state.running && state.speed === "max" && !stepOnce) keepFastestGoing();
+  else if (canRequest()) {
     if (stepOnce) {
       stepOnce = false;
       request(1, 1000);

@@ -67,7 +67,8 @@ function start(msg) {
   );
 }
 
-/** Steps the active run: up to msg.steps steps, stopping early after msg.budgetMs of work. */
+/** Steps the active run: up to msg.steps steps, at least one, and no further step once the last
+ * one's duration would take the work past msg.budgetMs. */
 function advance(msg) {
   if (!run || msg.token !== token) {
     post({ type: "frame", token, stale: true });
@@ -78,13 +79,16 @@ function advance(msg) {
   const chunks = [];
   let taken = 0;
   let length = 0;
+  let last = t0;
   while (taken < msg.steps && !run.finished) {
     const rec = run.advance(1);
     if (rec.length === 0) break;
     chunks.push(rec);
     length += rec.length;
     taken += 1;
-    if (performance.now() - t0 > msg.budgetMs) break;
+    const now = performance.now();
+    if (now - t0 + (now - last) > msg.budgetMs) break;
+    last = now;
   }
   const stepMs = performance.now() - t0;
   const records = new Float64Array(length);
