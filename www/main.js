@@ -62,6 +62,10 @@ let inFlight = 0; // batches asked for and not yet answered
 let stepOnce = false;
 let refToken = 0;
 let refSummaries = [];
+// Whole cycles the single-foil reference may run ahead of the live run: it waits there instead
+// of taking a core from the live run (and the page's drawing) until it is done.
+const REFERENCE_LEAD = 2;
+let refAllowed = 0; // the last allowance sent to the reference worker (cycles)
 let lastSummary = null;
 const perf = { steps: 0, stepMs: 0, draws: 0, frames: 0, since: performance.now() };
 
@@ -205,7 +209,8 @@ function started(msg) {
   refSummaries = [];
   if (n >= 2) {
     refToken += 1;
-    reference.post({ type: "reference", token: refToken, caseJson: JSON.stringify(PageState.singleFoilCase(c, 1)) });
+    refAllowed = msg.stepsPerCycle > 0 ? REFERENCE_LEAD : Infinity;
+    reference.post({ type: "reference", token: refToken, caseJson: JSON.stringify(PageState.singleFoilCase(c, 1)), cycles: refAllowed });
   }
   updateClock(0, msg.time);
   setRunState();
@@ -243,6 +248,7 @@ function frame(msg) {
     run.finished = true;
     setRunState();
   }
+  allowReference(msg.stepsTaken);
   // At the fastest speed the next batch goes at once, not at the next animation frame.
   keepFastestGoing();
 }
@@ -286,6 +292,17 @@ function setRunState() {
   $("run-toggle").textContent = state.running ? "Pause" : "Run";
   $("run-toggle").setAttribute("aria-pressed", state.running ? "false" : "true");
   $("run-state").textContent = s === "finished" ? `finished: all ${run.totalSteps} steps (Reset runs it again)` : s === "running" ? "running" : "paused";
+}
+
+/** Lets the single-foil reference run REFERENCE_LEAD cycles past the live run's `stepsTaken`,
+ * and to its end once the live run has finished. */
+function allowReference(stepsTaken) {
+  if (run.foils < 2 || run.stepsPerCycle <= 0) return;
+  const cycles = run.finished ? Infinity : Math.floor(stepsTaken / run.stepsPerCycle) + REFERENCE_LEAD;
+  if (cycles > refAllowed) {
+    refAllowed = cycles;
+    reference.post({ type: "reference-allow", token: refToken, cycles });
+  }
 }
 
 /** Whether a batch of steps may be asked for now: a run that can go on, no case change waiting,

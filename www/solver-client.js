@@ -7,8 +7,9 @@
 //      or, for a bad case (the old run goes on)    -> { type: "case-error", token, activeToken, error, derived }
 //   { type: "advance", token, steps, budgetMs }    -> { type: "frame", token, steps, stepMs, stepsTaken,
 //        time, finished, records, particles, outlines, summary|null }   (or { stale: true })
-//   { type: "reference", token, caseJson }         -> { type: "reference-cycle", token, cycles,
-//        stepsTaken, finished, summary } after every whole cycle
+//   { type: "reference", token, caseJson, cycles } -> { type: "reference-cycle", token, cycles,
+//        stepsTaken, finished, summary } after every whole cycle, up to `cycles` of them
+//   { type: "reference-allow", token, cycles }     -> (none) lets the reference run on to `cycles`
 //   { type: "derived", id, caseJson }              -> { type: "derived", id, derived|null, error? }
 // Any failure of the wasm module or the worker  -> { type: "fatal", message }, or an error event.
 

@@ -6,6 +6,8 @@ let run = null; // the active SolverRun
 let token = 0; // the active run's token
 let stepsPerCycle = 0; // 0 for a start from rest
 let lastConsoleError = "";
+let referenceCycles = Infinity; // whole cycles the reference run may complete for now
+let referenceWaiting = null; // the reference's next slice while it waits for a larger allowance
 
 // A Rust panic is reported through console.error (console_error_panic_hook); keep its text so
 // the page can show it.
@@ -109,7 +111,8 @@ function advance(msg) {
 }
 
 /** The reference run: whole cycles at a time, a summary after each, yielding between cycles so
- * a newer request can cancel it. */
+ * a newer request can cancel it; with msg.cycles it stops after that many whole cycles until a
+ * "reference-allow" message raises the allowance. */
 function reference(msg) {
   let ref;
   try {
@@ -124,8 +127,14 @@ function reference(msg) {
   token = msg.token;
   const perCycle = spc(JSON.parse(msg.caseJson));
   const perSlice = perCycle || 50;
+  referenceCycles = msg.cycles ?? Infinity;
+  referenceWaiting = null;
   const slice = () => {
     if (run !== ref || token !== msg.token) return;
+    if (perCycle > 0 && Math.floor(ref.stepsTaken / perCycle) >= referenceCycles) {
+      referenceWaiting = slice;
+      return;
+    }
     try {
       ref.advance(perSlice);
       if (perCycle > 0 || ref.finished) {
@@ -152,6 +161,14 @@ self.onmessage = async (ev) => {
       case "start": start(msg); break;
       case "advance": advance(msg); break;
       case "reference": reference(msg); break;
+      case "reference-allow":
+        if (msg.token === token) {
+          referenceCycles = msg.cycles;
+          const next = referenceWaiting;
+          referenceWaiting = null;
+          if (next) setTimeout(next, 0);
+        }
+        break;
       case "derived": {
         try {
           post({ type: "derived", id: msg.id, derived: derived(msg.caseJson) });
