@@ -1,7 +1,9 @@
 // The animation loop: requestAnimationFrame drives everything on the page's thread. The solver
 // runs in a worker; each frame asks it for as many fixed time steps as real time times the speed
 // factor calls for (capped, so a slow machine falls behind instead of spiralling), with at most
-// one request in flight. At the fastest speed ("max") two batches are kept in flight (main.js),
+// one request in flight (and, when a batch comes back while the run owes steps, the owed steps are
+// asked for at once rather than at the next frame). At the fastest speed ("max") two batches are
+// kept in flight (main.js),
 // each about two display frames of work, so that the worker never waits for the page: the view is
 // redrawn about every other frame (on a 2-core machine drawing every frame took more from the
 // solver than it gave; measured in the page, see DEVELOPERS.md). The physics time step comes from
@@ -23,7 +25,8 @@ export class Loop {
   }
 }
 
-/** How many solver steps to ask for this frame. */
+/** How many solver steps to ask for: real time times the speed, counted on every animation frame
+ * (also while a batch is in flight), less the steps already asked for. */
 export class StepPacer {
   constructor() {
     this.accumulated = 0; // s of simulated time owed
@@ -36,15 +39,14 @@ export class StepPacer {
     if (steps > 0) this.msPerStep = 0.8 * this.msPerStep + 0.2 * (ms / steps);
   }
   /**
-   * @param {number} dtReal  s of real time since the last frame
+   * The steps owed now.
    * @param {number|"max"} speed  simulated seconds per real second, or "max"
    * @param {number} timeStep  s, the case's time step
    * @returns {{steps: number, budgetMs: number}}
    */
-  next(dtReal, speed, timeStep) {
+  next(speed, timeStep) {
     if (speed === "max") return this.fastest();
     const cap = Math.max(1, Math.floor(40 / Math.max(0.05, this.msPerStep)));
-    this.accumulated += dtReal * speed;
     let steps = Math.floor(this.accumulated / timeStep + 1e-9);
     if (steps <= 0) return { steps: 0, budgetMs: 0 };
     if (steps > cap) {
@@ -55,9 +57,15 @@ export class StepPacer {
     }
     return { steps, budgetMs: 45 };
   }
-  /** Notes the real time (s) since the last animation frame; called on every frame. */
-  frame(dtReal) {
+  /**
+   * Called on every animation frame.
+   * @param {number} dtReal  s of real time since the last frame
+   * @param {number} speed  simulated seconds per real second owed for it (0 when paused, finished
+   *   or at the fastest speed)
+   */
+  frame(dtReal, speed) {
     if (dtReal > 0) this.frameMs = 0.9 * this.frameMs + 0.1 * Math.min(100, dtReal * 1000);
+    this.accumulated += dtReal * speed;
   }
   /** A batch at the fastest speed: as many steps as fit in two display frames less 3 ms (at least
    * one step; the worker stops before a step that would overrun the budget). */

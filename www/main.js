@@ -249,8 +249,15 @@ function frame(msg) {
     setRunState();
   }
   allowReference(msg.stepsTaken);
-  // At the fastest speed the next batch goes at once, not at the next animation frame.
-  keepFastestGoing();
+  // The next batch goes at once, not at the next animation frame: at the fastest speed always,
+  // at a set speed when the run already owes steps (it is behind real time times the speed).
+  if (state.running && !stepOnce) {
+    if (state.speed === "max") keepFastestGoing();
+    else if (canRequest()) {
+      const { steps, budgetMs } = pacer.next(state.speed, run.timeStep);
+      if (steps > 0) request(steps, budgetMs);
+    }
+  }
 }
 
 function onReference(msg) {
@@ -327,14 +334,15 @@ function request(steps, budgetMs) {
 
 const loop = new Loop((dt, now) => {
   perf.frames += 1;
-  pacer.frame(dt);
+  const owing = state.running && !stepOnce && run && !run.finished && state.speed !== "max";
+  pacer.frame(dt, owing ? state.speed : 0);
   if (state.running && state.speed === "max" && !stepOnce) keepFastestGoing();
   else if (canRequest()) {
     if (stepOnce) {
       stepOnce = false;
       request(1, 1000);
     } else if (state.running) {
-      const { steps, budgetMs } = pacer.next(dt, state.speed, run.timeStep);
+      const { steps, budgetMs } = pacer.next(state.speed, run.timeStep);
       if (steps > 0) request(steps, budgetMs);
     }
   }
