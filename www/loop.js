@@ -3,11 +3,10 @@
 // factor calls for (capped, so a slow machine falls behind instead of spiralling), with at most
 // one request in flight (and, when a batch comes back while the run owes steps, the owed steps are
 // asked for at once rather than at the next frame). At the fastest speed ("max") two batches are
-// kept in flight (main.js),
-// each about two display frames of work, so that the worker never waits for the page: the view is
-// redrawn about every other frame (on a 2-core machine drawing every frame took more from the
-// solver than it gave; measured in the page, see DEVELOPERS.md). The physics time step comes from
-// the case, never from the frame time.
+// kept in flight (main.js), each about two display frames of work, so that the worker never waits
+// for the page: the view is redrawn about every other frame (on a 2-core machine drawing every
+// frame took more from the solver than it gave; measured in the page, see DEVELOPERS.md). The
+// physics time step comes from the case, never from the frame time.
 
 export class Loop {
   /** @param {(dtSeconds: number, nowMs: number) => void} onFrame */
