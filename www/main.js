@@ -262,6 +262,8 @@ function frame(msg) {
 
 function onReference(msg) {
   if (msg.type === "reference-cycle" && msg.token === refToken) {
+    // Whole cycles the single-foil reference has run (a test hook, see tests/browser/README.md).
+    document.body.dataset.referenceCycles = String(msg.cycles);
     refSummaries[msg.cycles] = msg.summary;
     if (msg.finished) refSummaries.final = msg.summary;
     showRelative();

@@ -120,6 +120,28 @@ test("the readouts equal `finwake simulate` on the same case after the same cycl
   });
 });
 
+test("the single-foil reference keeps at most two cycles ahead of a paused live run, and finishes with it", async () => {
+  await withPage(async ({ page }) => {
+    // 20 cycles: unchecked, the single-foil reference (2,000 steps of one foil) would be done in
+    // a few seconds here while the live run stays paused.
+    await page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=20`);
+    await page.waitForSelector("body[data-ready]", { timeout: 60000 });
+    await page.click("#run-toggle");
+    await page.waitForSelector('body[data-run-state="paused"]');
+    await page.waitForTimeout(5000);
+    const live = Number(await page.locator('[data-stat="cycle"]').getAttribute("data-value"));
+    const ahead = Number(await page.getAttribute("body", "data-reference-cycles"));
+    assert.ok(ahead >= 1, `the reference ran ${ahead} cycles`);
+    assert.ok(ahead <= Math.floor(live) + 2, `the reference ran ${ahead} cycles while the live run was paused at cycle ${live}`);
+    // Once the live run has finished, the reference runs to its end.
+    await page.selectOption('select[name="run.speed"]', "max");
+    await page.click("#run-toggle");
+    await page.waitForSelector('body[data-run-state="finished"]', { timeout: 120000 });
+    await page.waitForFunction(() => document.body.dataset.referenceCycles === "20", null, { timeout: 60000 });
+    console.log(`# reference: ${ahead} cycles ahead of a live run paused at cycle ${live.toFixed(2)}; 20 of 20 once it finished`);
+  });
+});
+
 test("every control is reachable and changeable from the keyboard", async () => {
   await withPage(async ({ page, log }) => {
     await openReady(page, server.origin);
