@@ -303,7 +303,7 @@ impl BlobGroup {
         let gap = ((p[0] - self.centre[0]).powi(2) + (p[1] - self.centre[1]).powi(2)).sqrt()
             - self.radius;
         let c = el.columns();
-        match (self.sources, gap <= 6.0 * self.core) {
+        match (self.sources, gap <= SHIELD_CUT * self.core) {
             (true, true) => velocity_range::<true, true>(c, 0, el.len(), p),
             (true, false) => velocity_range::<true, false>(c, 0, el.len(), p),
             (false, true) => velocity_range::<false, true>(c, 0, el.len(), p),
@@ -348,9 +348,11 @@ const LN2_LO: f64 = f64::from_bits(0x3dea_39ef_3579_3c76);
 /// 1.5 * 2^52: adding it rounds to an integer, which then sits in the low mantissa bits.
 const SHIFT: f64 = 6_755_399_441_055_744.0;
 
-/// `r^2 / delta^2` from which the blob shield `1 - exp(-r^2 / delta^2)` is taken as exactly 1
+/// Cores (`r / delta`) from which the blob shield `1 - exp(-r^2 / delta^2)` is taken as exactly 1
 /// (six cores: `exp(-36)` is below the round-off of 1).
-const SHIELD_CUT_SQ: f64 = 36.0;
+const SHIELD_CUT: f64 = 6.0;
+/// [`SHIELD_CUT`] squared, the same cut on `r^2 / delta^2`.
+const SHIELD_CUT_SQ: f64 = SHIELD_CUT * SHIELD_CUT;
 
 /// `exp(x)` for `-40 <= x <= 0` in basic IEEE operations only (no table, no branch), so that it
 /// vectorises and rounds the same on every target: `x = k ln 2 + r` with `|r| <= ln 2 / 2`
@@ -481,7 +483,7 @@ fn mutual_block<const SHIELD: bool>(
     // b's blobs, where the shield is exactly 1, so its row needs no exponentials (the same bits;
     // the relative margin of 1e-9 keeps rows within rounding of the cut on the shielded path).
     // The same holds block by block, for the rows that come near b.
-    let cut = 6.0 * (1.0 + 1e-9) * delta_sq.sqrt();
+    let cut = SHIELD_CUT * (1.0 + 1e-9) * delta_sq.sqrt();
     let clear_sq = (cut + b.radius).powi(2);
     let mut block_clear = [([0.0; 2], 0.0); LEAF / LANES];
     if SHIELD {
@@ -1134,7 +1136,7 @@ impl Tree {
         let dx = p[0] - cell.centre[0];
         let dy = p[1] - cell.centre[1];
         let gap = (dx * dx + dy * dy).sqrt() - cell.radius;
-        let shielded = gap <= 6.0 * cell.core;
+        let shielded = gap <= SHIELD_CUT * cell.core;
         let (lo, hi) = (cell.start, cell.end);
         if self.sources {
             direct_range::<PSI, true>(columns, lo, hi, p, shielded)
@@ -1460,7 +1462,7 @@ impl Tree {
                     - a.radius
                     - b.radius;
                 // Beyond six cores every shield is exactly 1 (see `velocity_range`).
-                if gap <= 6.0 * delta_sq.sqrt() {
+                if gap <= SHIELD_CUT * delta_sq.sqrt() {
                     mutual_block::<true>(columns, a, b, delta_sq, &mut u, &mut v);
                 } else {
                     mutual_block::<false>(columns, a, b, delta_sq, &mut u, &mut v);
