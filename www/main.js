@@ -249,15 +249,8 @@ function frame(msg) {
     setRunState();
   }
   allowReference(msg.stepsTaken);
-  // The next batch goes at once, not at the next animation frame: at the fastest speed always,
-  // at a set speed when the run already owes steps (it is behind real time times the speed).
-  if (state.running && !stepOnce) {
-    if (state.speed === "max") keepFastestGoing();
-    else if (canRequest()) {
-      const { steps, budgetMs } = pacer.next(state.speed, run.timeStep);
-      if (steps > 0) request(steps, budgetMs);
-    }
-  }
+  // The next batch goes at once, not at the next animation frame (see askForSteps).
+  askForSteps();
 }
 
 function onReference(msg) {
@@ -320,12 +313,20 @@ function canRequest(limit = 1) {
   return !faulted && run && !run.finished && inFlight < limit && pending.size === 0;
 }
 
-/** At the fastest speed two batches are kept in flight, so that the worker starts the next as
- * soon as it has posted one, while the page takes in and draws that one (see loop.js). */
-function keepFastestGoing() {
-  while (state.running && state.speed === "max" && !stepOnce && canRequest(2)) {
-    const { steps, budgetMs } = pacer.fastest();
-    request(steps, budgetMs);
+/** Asks the worker for what a running run is owed, on every animation frame and whenever a batch
+ * comes back: at the fastest speed two batches are kept in flight, so that the worker starts the
+ * next as soon as it has posted one while the page takes in and draws that one; at a set speed
+ * the steps owed, one batch in flight (see loop.js). */
+function askForSteps() {
+  if (!state.running || stepOnce) return;
+  if (state.speed === "max") {
+    while (canRequest(2)) {
+      const { steps, budgetMs } = pacer.fastest();
+      request(steps, budgetMs);
+    }
+  } else if (canRequest()) {
+    const { steps, budgetMs } = pacer.next(state.speed, run.timeStep);
+    if (steps > 0) request(steps, budgetMs);
   }
 }
 
@@ -338,16 +339,12 @@ const loop = new Loop((dt, now) => {
   perf.frames += 1;
   const owing = state.running && !stepOnce && run && !run.finished && state.speed !== "max";
   pacer.frame(dt, owing ? state.speed : 0);
-  if (state.running && state.speed === "max" && !stepOnce) keepFastestGoing();
-  else if (canRequest()) {
-    if (stepOnce) {
+  if (stepOnce) {
+    if (canRequest()) {
       stepOnce = false;
       request(1, 1000);
-    } else if (state.running) {
-      const { steps, budgetMs } = pacer.next(state.speed, run.timeStep);
-      if (steps > 0) request(steps, budgetMs);
     }
-  }
+  } else askForSteps();
   let drew = false;
   if (wake.needsDraw) { wake.draw(); drew = true; }
   for (const p of Object.values(plots)) if (p.needsDraw) { p.draw(); drew = true; }
