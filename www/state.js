@@ -39,10 +39,11 @@ export const NUMERICS_SPEC = [
   { key: "numerics.max_particles", label: "Particle cap", unit: "", min: 200, max: 20000, step: 100, integer: true },
   { key: "numerics.ramp_cycles", label: "Smooth start", unit: "cycles", min: 0, max: 10, step: 0.5 },
   { key: "numerics.wake_merge", label: "Far-wake merging", unit: "of distance", min: 0, max: 0.5, step: 0.01 },
+  { key: "numerics.far_wake_refresh", label: "Far-wake refresh", unit: "steps", min: 1, max: 8, step: 1, integer: true },
 ];
 
 /** Default numerics (the crate's Numerics::default), filled in where a case omits them. */
-const NUMERICS_DEFAULT = { panels: 80, steps_per_cycle: 100, cycles: 8, core_size: 0.05, max_particles: 4000, ramp_cycles: 1, wake_merge: 0.1 };
+const NUMERICS_DEFAULT = { panels: 80, steps_per_cycle: 100, cycles: 8, core_size: 0.05, max_particles: 4000, ramp_cycles: 1, wake_merge: 0.1, far_wake_refresh: 4 };
 
 export function getPath(obj, key) {
   return key.split(".").reduce((o, k) => (o == null ? undefined : o[k]), obj);

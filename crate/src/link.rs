@@ -209,6 +209,13 @@ pub const KEYS: &[LinkKey] = &[
         D::Number(1.0),
         "cycles",
     ),
+    row(
+        "refresh",
+        "numerics.far_wake_refresh",
+        Whole,
+        D::Whole(4),
+        "steps",
+    ),
     // Rig check (crate/src/rig.rs): tank and submergence, and each foil's moving parts.
     row("rig", "rig", Kind::Present, D::Absent, "-"),
     row("depth", "rig.depth", Number, D::Absent, "m"),

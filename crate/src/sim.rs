@@ -478,8 +478,15 @@ struct Wake {
     x: Vec<f64>,
     y: Vec<f64>,
     gamma: Vec<f64>,
-    /// m/s. Velocity at the previous step (for Adams-Bashforth), NaN for a new particle.
+    /// m/s. Velocity at the particle's last evaluation (for Adams-Bashforth), NaN for a new
+    /// particle.
     u_prev: Vec<[f64; 2]>,
+    /// m/s per step. Change of velocity per step between the particle's last two evaluations
+    /// (zero until it has two); a far-wake particle between evaluations moves with its velocity
+    /// extrapolated along it (see [`Simulation::convect`]).
+    du: Vec<[f64; 2]>,
+    /// Step at which the particle's velocity was last evaluated.
+    evaluated: Vec<usize>,
     owner: Vec<usize>,
 }
 
@@ -488,12 +495,25 @@ impl Wake {
         self.x.len()
     }
 
-    fn push(&mut self, p: [f64; 2], gamma: f64, owner: usize) {
+    fn push(&mut self, p: [f64; 2], gamma: f64, owner: usize, step: usize) {
         self.x.push(p[0]);
         self.y.push(p[1]);
         self.gamma.push(gamma);
         self.u_prev.push([f64::NAN; 2]);
+        self.du.push([0.0; 2]);
+        self.evaluated.push(step);
         self.owner.push(owner);
+    }
+
+    /// m/s. Particle `i`'s velocity at step `n` from its last evaluation and its change per
+    /// step (linear extrapolation; the evaluated velocity itself at its own step).
+    fn velocity_at_step(&self, i: usize, n: usize) -> [f64; 2] {
+        let (u, du) = (self.u_prev[i], self.du[i]);
+        if n == self.evaluated[i] {
+            return u;
+        }
+        let s = n as f64 - self.evaluated[i] as f64;
+        [u[0] + s * du[0], u[1] + s * du[1]]
     }
 
     /// m/s. Velocity induced at `p` by all particles (direct Biot-Savart sum of Gaussian
@@ -561,8 +581,14 @@ impl Wake {
         let g = gi + gj;
         self.x[j] = (gj * self.x[j] + gi * self.x[i]) / g;
         self.y[j] = (gj * self.y[j] + gi * self.y[i]) / g;
-        let (ui, uj) = (self.u_prev[i], self.u_prev[j]);
+        // Both velocities at the later of the two evaluations (the same step unless one is a
+        // far-wake particle between its evaluations).
+        let n = self.evaluated[i].max(self.evaluated[j]);
+        let (ui, uj) = (self.velocity_at_step(i, n), self.velocity_at_step(j, n));
         self.u_prev[j] = [(gj * uj[0] + gi * ui[0]) / g, (gj * uj[1] + gi * ui[1]) / g];
+        let (di, dj) = (self.du[i], self.du[j]);
+        self.du[j] = [(gj * dj[0] + gi * di[0]) / g, (gj * dj[1] + gi * di[1]) / g];
+        self.evaluated[j] = n;
         self.gamma[j] = g;
     }
 
@@ -575,6 +601,8 @@ impl Wake {
                 self.y[k] = self.y[i];
                 self.gamma[k] = self.gamma[i];
                 self.u_prev[k] = self.u_prev[i];
+                self.du[k] = self.du[i];
+                self.evaluated[k] = self.evaluated[i];
                 self.owner[k] = self.owner[i];
                 k += 1;
             }
@@ -583,6 +611,8 @@ impl Wake {
         self.y.truncate(k);
         self.gamma.truncate(k);
         self.u_prev.truncate(k);
+        self.du.truncate(k);
+        self.evaluated.truncate(k);
         self.owner.truncate(k);
     }
 
@@ -637,6 +667,8 @@ pub struct Simulation {
     /// Fraction of the distance to the nearest foil below which neighbouring far-wake particles
     /// are merged (`numerics.wake_merge`; 0 = never).
     merge_ratio: f64,
+    /// Steps between the velocity evaluations of far-wake particles (1 = every step).
+    far_refresh: usize,
 }
 
 impl Simulation {
@@ -692,6 +724,7 @@ impl Simulation {
             impulse: Vec::with_capacity(total_steps),
             chain_panels: Vec::new(),
             merge_ratio: num.wake_merge,
+            far_refresh: num.far_wake_refresh,
             coupling: Vec::new(),
         })
     }
@@ -988,7 +1021,7 @@ impl Simulation {
         // Shed: the change of bound circulation becomes a free blob at the shed point.
         for (bi, b) in self.bodies.iter().enumerate() {
             let prev = prev_circulation[bi];
-            self.wake.push(b.shed_point, prev - b.circulation, bi);
+            self.wake.push(b.shed_point, prev - b.circulation, bi, n);
         }
         self.impulse.push(self.vortex_impulse());
         self.convect(t, &tree, &chained, &in_chain);
@@ -1006,19 +1039,8 @@ impl Simulation {
     /// particle count stays bounded (a particle's influence on a foil falls off with distance).
     fn merge_far_wake(&mut self) {
         let t_next = self.steps as f64 * self.dt + self.dt;
-        let chord = self.bodies.iter().map(|b| b.chord).fold(0.0, f64::max);
-        let lines: Vec<([f64; 2], [f64; 2])> = self
-            .bodies
-            .iter()
-            .map(|b| {
-                let pose = b.motion.pose(t_next);
-                (
-                    pose.to_world([0.0, 0.0], b.chord, b.pivot),
-                    pose.to_world([1.0, 0.0], b.chord, b.pivot),
-                )
-            })
-            .collect();
-        let clear = MERGE_CLEAR_CHORDS * chord;
+        let lines = self.chord_lines(t_next);
+        let clear = MERGE_CLEAR_CHORDS * self.largest_chord();
         let ratio = self.merge_ratio;
         self.wake.merge_by_distance(self.bodies.len(), |p| {
             let d = lines
@@ -1031,6 +1053,25 @@ impl Simulation {
                 ratio * d
             }
         });
+    }
+
+    /// m. Each foil's chord line (leading edge, trailing edge) at time `t` (s).
+    fn chord_lines(&self, t: f64) -> Vec<([f64; 2], [f64; 2])> {
+        self.bodies
+            .iter()
+            .map(|b| {
+                let pose = b.motion.pose(t);
+                (
+                    pose.to_world([0.0, 0.0], b.chord, b.pivot),
+                    pose.to_world([1.0, 0.0], b.chord, b.pivot),
+                )
+            })
+            .collect()
+    }
+
+    /// m. The largest chord of the foils.
+    fn largest_chord(&self) -> f64 {
+        self.bodies.iter().map(|b| b.chord).fold(0.0, f64::max)
     }
 
     /// Indices of each foil's near-wake particles, newest first: consecutive particles of that foil
@@ -1525,18 +1566,55 @@ impl Simulation {
                 .zip(&moments)
                 .map(|(g, m)| g.far_field(m, TREE_TOLERANCE)),
         );
-        let (at_free, masks) = tree.velocity_at_elements_with(&far);
-        let mut at_free = at_free.into_iter().zip(masks);
-        let from_tree: Vec<([f64; 2], u32)> = (0..np)
-            .map(|i| {
-                if i < new_from && !in_chain[i] {
-                    at_free.next().expect("one tree element per free particle")
-                } else {
-                    (tree.velocity([self.wake.x[i], self.wake.y[i]]), u32::MAX)
-                }
-            })
-            .collect();
+        // Which particles are evaluated this step: all of them on a full step, otherwise those
+        // of the near wake (within MERGE_CLEAR_CHORDS of a foil), the chained and the new ones.
+        let n = self.steps;
+        let full = self.far_refresh <= 1 || n % self.far_refresh == 0;
+        let evaluate: Vec<bool> = if full {
+            vec![true; np]
+        } else {
+            let lines = self.chord_lines(t);
+            let clear = MERGE_CLEAR_CHORDS * self.largest_chord();
+            (0..np)
+                .map(|i| {
+                    i >= new_from
+                        || in_chain[i]
+                        || lines.iter().any(|&(a, b)| {
+                            geometry::segment_distance(a, b, [self.wake.x[i], self.wake.y[i]])
+                                < clear
+                        })
+                })
+                .collect()
+        };
+        let from_tree: Vec<([f64; 2], u32)> = if full {
+            let (at_free, masks) = tree.velocity_at_elements_with(&far);
+            let mut at_free = at_free.into_iter().zip(masks);
+            (0..np)
+                .map(|i| {
+                    if i < new_from && !in_chain[i] {
+                        at_free.next().expect("one tree element per free particle")
+                    } else {
+                        (tree.velocity([self.wake.x[i], self.wake.y[i]]), u32::MAX)
+                    }
+                })
+                .collect()
+        } else {
+            // The near wake through target leaves of its own; every far field added directly.
+            let near: Vec<usize> = (0..np).filter(|&i| evaluate[i]).collect();
+            let pts: Vec<[f64; 2]> = near
+                .iter()
+                .map(|&i| [self.wake.x[i], self.wake.y[i]])
+                .collect();
+            let mut out = vec![([0.0; 2], 0u32); np];
+            for (&i, (u, _)) in near.iter().zip(tree.eval_points(&pts, false)) {
+                out[i] = (u, u32::MAX);
+            }
+            out
+        };
         let vel: Vec<[f64; 2]> = par_map(np, PARALLEL_PARTICLES, |i| {
+            if !evaluate[i] {
+                return [0.0; 2];
+            }
             let p = [self.wake.x[i], self.wake.y[i]];
             let (mut u, missed) = from_tree[i];
             for (gi, g) in groups.iter().enumerate() {
@@ -1556,17 +1634,37 @@ impl Simulation {
             }
             u
         });
+        // Adams-Bashforth 2 (Euler for a new particle), with the step since the particle's last
+        // evaluation; a particle not evaluated this step moves with its velocity extrapolated
+        // linearly from its last two evaluations to the middle of the step (second order too).
+        let w = &mut self.wake;
         for i in 0..np {
-            let u = vel[i];
-            let up = self.wake.u_prev[i];
-            let step = if up[0].is_nan() {
-                u
+            let step = if evaluate[i] {
+                let u = vel[i];
+                let up = w.u_prev[i];
+                let gap = n - w.evaluated[i];
+                let step = if up[0].is_nan() {
+                    w.du[i] = [0.0; 2];
+                    u
+                } else if gap <= 1 {
+                    w.du[i] = [u[0] - up[0], u[1] - up[1]];
+                    [1.5 * u[0] - 0.5 * up[0], 1.5 * u[1] - 0.5 * up[1]]
+                } else {
+                    let g = gap as f64;
+                    let du = [(u[0] - up[0]) / g, (u[1] - up[1]) / g];
+                    w.du[i] = du;
+                    [u[0] + 0.5 * du[0], u[1] + 0.5 * du[1]]
+                };
+                w.u_prev[i] = u;
+                w.evaluated[i] = n;
+                step
             } else {
-                [1.5 * u[0] - 0.5 * up[0], 1.5 * u[1] - 0.5 * up[1]]
+                let (u, du) = (w.u_prev[i], w.du[i]);
+                let s = (n - w.evaluated[i]) as f64 + 0.5;
+                [u[0] + s * du[0], u[1] + s * du[1]]
             };
-            self.wake.x[i] += self.dt * step[0];
-            self.wake.y[i] += self.dt * step[1];
-            self.wake.u_prev[i] = u;
+            w.x[i] += self.dt * step[0];
+            w.y[i] += self.dt * step[1];
         }
         let t_next = t + self.dt;
         let margin = 0.25 * self.delta_sq.sqrt();

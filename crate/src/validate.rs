@@ -37,6 +37,7 @@
 //! | `numerics.max_particles` | 200 to 200000 | |
 //! | `numerics.ramp_cycles` | 0 to 10 and fewer than `cycles` | at least part of one cycle runs at full amplitude |
 //! | `numerics.wake_merge` | 0 to 0.5 of the distance to the nearest foil | above half the distance the wake is too lumpy to follow |
+//! | `numerics.far_wake_refresh` | 1 to 8 steps | at 8 the mean loads of the high-Strouhal example move by 0.2 % from the every-step run (`tests/validation`); beyond, the extrapolation spans a tenth of a cycle |
 //! | `numerics.time_step` | frequency 0 only; more than 0, at most one chord of travel of foil 0 | |
 //! | `numerics.duration` | frequency 0 only; at least one time step | |
 //! | all steps of a run | at most 2,000,000 | memory of the load history |
@@ -88,6 +89,8 @@ pub const CORE_SIZE_RANGE: (f64, f64) = (0.005, 0.5);
 pub const MAX_PARTICLES_RANGE: (usize, usize) = (200, 200_000);
 /// Fraction of the distance to the nearest foil: `numerics.wake_merge`.
 pub const WAKE_MERGE_RANGE: (f64, f64) = (0.0, 0.5);
+/// Steps. Fewest and most steps between the velocity evaluations of far-wake particles.
+pub const FAR_WAKE_REFRESH_RANGE: (usize, usize) = (1, 8);
 /// Cycles. Longest smooth start.
 pub const RAMP_CYCLES_MAX: f64 = 10.0;
 /// Chords of travel of foil 0. Largest distance the stream may move in one time step.
@@ -396,6 +399,13 @@ const NUMERICS_KEYS: &[Key] = &[
         false,
         "fraction of the distance to the nearest foil, 0 to 0.5",
         "0.1",
+    ),
+    key(
+        "far_wake_refresh",
+        Shape::Whole,
+        false,
+        "a whole number of steps, 1 to 8",
+        "4",
     ),
     key(
         "ramp_cycles",
@@ -962,6 +972,13 @@ fn validate_numerics(case: &Case) -> Result<(), CaseError> {
         WAKE_MERGE_RANGE,
         "0 to 0.5 (fraction of the distance to the nearest foil)",
         "use 0.1 (the default), or 0 to keep every wake particle",
+    )?;
+    check_usize(
+        "numerics.far_wake_refresh",
+        num.far_wake_refresh,
+        FAR_WAKE_REFRESH_RANGE,
+        "1 to 8 steps",
+        "use 4 (the default), or 1 to evaluate every particle at every step",
     )?;
     check_f64(
         "numerics.ramp_cycles",

@@ -120,6 +120,7 @@ pub fn case_limits() -> Result<JsValue, JsValue> {
         "numerics.core_size": pair(limits::CORE_SIZE_RANGE),
         "numerics.max_particles": count(limits::MAX_PARTICLES_RANGE),
         "numerics.wake_merge": pair(limits::WAKE_MERGE_RANGE),
+        "numerics.far_wake_refresh": count(limits::FAR_WAKE_REFRESH_RANGE),
         "numerics.ramp_cycles": [0.0, limits::RAMP_CYCLES_MAX],
         "foils": [1.0, crate::case::MAX_FOILS as f64],
     });

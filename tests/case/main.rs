@@ -161,6 +161,8 @@ fn bounds_are_inclusive() {
         vec![("/numerics/max_particles", json!(200_000))],
         vec![("/numerics/wake_merge", json!(0.0))],
         vec![("/numerics/wake_merge", json!(0.5))],
+        vec![("/numerics/far_wake_refresh", json!(1))],
+        vec![("/numerics/far_wake_refresh", json!(8))],
         vec![("/numerics/ramp_cycles", json!(0.0))],
         vec![
             ("/numerics/ramp_cycles", json!(10.0)),
@@ -620,6 +622,22 @@ fn max_particles_within_range() {
         json!(300_000),
         "numerics.max_particles",
         &["= 300000", "200 to 200000"],
+    );
+}
+
+#[test]
+fn far_wake_refresh_within_range() {
+    reject(
+        "/numerics/far_wake_refresh",
+        json!(0),
+        "numerics.far_wake_refresh",
+        &["= 0", "1 to 8 steps"],
+    );
+    reject(
+        "/numerics/far_wake_refresh",
+        json!(9),
+        "numerics.far_wake_refresh",
+        &["= 9", "1 to 8 steps"],
     );
 }
 
