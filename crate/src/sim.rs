@@ -1569,7 +1569,7 @@ impl Simulation {
         // Which particles are evaluated this step: all of them on a full step, otherwise those
         // of the near wake (within MERGE_CLEAR_CHORDS of a foil), the chained and the new ones.
         let n = self.steps;
-        let full = self.far_refresh <= 1 || n % self.far_refresh == 0;
+        let full = self.far_refresh <= 1 || n.is_multiple_of(self.far_refresh);
         let evaluate: Vec<bool> = if full {
             vec![true; np]
         } else {
@@ -1877,6 +1877,23 @@ mod tests {
     }
 
     #[test]
+    fn merging_combines_velocities_at_the_later_evaluation() {
+        // Particle 0 evaluated at step 10 (2 m/s along x, growing 0.1 m/s a step), particle 1
+        // at step 12 (1 m/s, steady): merged, particle 0's velocity is first carried to step 12
+        // (2.2 m/s), then weighted by circulation (3 : 1).
+        let mut w = Wake::default();
+        w.push([0.0, 0.0], 3.0, 0, 10);
+        w.push([0.1, 0.0], 1.0, 0, 12);
+        w.u_prev = vec![[2.0, 0.0], [1.0, 0.0]];
+        w.du = vec![[0.1, 0.0], [0.0, 0.0]];
+        w.merge_into(0, 1);
+        assert_eq!(w.evaluated[0], 12);
+        assert!((w.u_prev[0][0] - (3.0 * 2.2 + 1.0) / 4.0).abs() < 1e-15);
+        assert!((w.du[0][0] - 0.3 / 4.0).abs() < 1e-15);
+        assert!((w.x[0] - 0.025).abs() < 1e-15 && w.gamma[0] == 4.0);
+    }
+
+    #[test]
     fn merging_by_distance_keeps_circulation_and_its_first_moment() {
         // Two foils' wakes interleaved as they are shed, runs of 7 same-sign particles, spread
         // along x from 0 to 3 m; merging allowed beyond x = 1 m with spacing 0.1 x.
@@ -1888,8 +1905,9 @@ mod tests {
                 [x, 0.02 * (x * 5.0).sin()],
                 sign * (1.0 + 0.001 * k as f64),
                 0,
+                0,
             );
-            w.push([x, -0.3], -sign * 0.5, 1);
+            w.push([x, -0.3], -sign * 0.5, 1, 0);
         }
         let before = moments(&w);
         let n0 = w.len();
