@@ -43,7 +43,7 @@ export const NUMERICS_SPEC = [
 ];
 
 /** Default numerics (the crate's Numerics::default), filled in where a case omits them. */
-const NUMERICS_DEFAULT = { panels: 80, steps_per_cycle: 100, cycles: 8, core_size: 0.05, max_particles: 4000, ramp_cycles: 1, wake_merge: 0.1, far_wake_refresh: 4 };
+const NUMERICS_DEFAULT = { panels: 80, steps_per_cycle: 100, cycles: 8, core_size: 0.05, max_particles: 4000, ramp_cycles: 1, wake_merge: 0.1, far_wake_refresh: 8 };
 
 export function getPath(obj, key) {
   return key.split(".").reduce((o, k) => (o == null ? undefined : o[k]), obj);

@@ -132,7 +132,7 @@ pub struct Numerics {
     /// wake particles of one foil farther than two chords from every foil are merged when they
     /// are closer than this; 0 keeps every particle up to `max_particles`.
     pub wake_merge: f64,
-    /// Steps between the velocity evaluations of far-wake particles, those farther than two
+    /// Steps between the velocity evaluations of far-wake particles, those farther than four
     /// chords from every foil (1 to 8; 1 = every step). Between evaluations a far-wake particle
     /// moves with its velocity extrapolated from its last two evaluations.
     pub far_wake_refresh: usize,
@@ -150,7 +150,7 @@ impl Default for Numerics {
             max_particles: 4000,
             ramp_cycles: 1.0,
             wake_merge: 0.1,
-            far_wake_refresh: 4,
+            far_wake_refresh: 8,
         }
     }
 }

@@ -213,7 +213,7 @@ pub const KEYS: &[LinkKey] = &[
         "refresh",
         "numerics.far_wake_refresh",
         Whole,
-        D::Whole(4),
+        D::Whole(8),
         "steps",
     ),
     // Rig check (crate/src/rig.rs): tank and submergence, and each foil's moving parts.

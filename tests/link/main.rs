@@ -199,7 +199,7 @@ fn random_case(rng: &mut Rng) -> Option<Case> {
     num.core_size = rng.value(0.005, 0.5, 0.05);
     num.max_particles = rng.whole(200, 200_000, 4000);
     num.wake_merge = rng.value(0.0, 0.5, 0.1);
-    num.far_wake_refresh = rng.whole(1, 8, 4);
+    num.far_wake_refresh = rng.whole(1, 8, 8);
     let c0 = case.foils[0].chord;
     let chord_time = c0 / case.flow.speed;
     if oscillating {

@@ -312,7 +312,7 @@ fn coarsening_the_far_wake_leaves_mean_forces_unchanged() {
 
 #[test]
 fn refreshing_the_far_wake_every_few_steps_leaves_mean_forces_unchanged() {
-    // Far-wake particles (beyond two chords of every foil) evaluated every
+    // Far-wake particles (beyond four chords of every foil) evaluated every
     // numerics.far_wake_refresh steps and moved in between with their velocity extrapolated
     // from their last two evaluations, against the run that evaluates every particle at every
     // step (refresh 1). Every particle is kept (no merging) so that most of the wake is far:
@@ -330,7 +330,7 @@ fn refreshing_the_far_wake_every_few_steps_leaves_mean_forces_unchanged() {
         };
         let every = with(1);
         let default = Numerics::default().far_wake_refresh;
-        for refresh in [default, 8] {
+        for refresh in [4, default] {
             let r = with(refresh);
             for (i, (a, b)) in every.foils.iter().zip(&r.foils).enumerate() {
                 let (dt, dp) = (b.thrust / a.thrust - 1.0, b.power / a.power - 1.0);
@@ -340,14 +340,52 @@ fn refreshing_the_far_wake_every_few_steps_leaves_mean_forces_unchanged() {
                     100.0 * dp,
                     r.particles
                 );
-                // 0.5 %: the accuracy asked of wake management (mean forces against a run
-                // that keeps the full wake at every step). The default refresh is held to a
-                // fifth of that (our choice, so that it costs little of the allowance); moving
-                // far particles with their last evaluated velocity (first order) instead of the
-                // extrapolated one fails that (high-Strouhal: thrust -0.12 %, power -0.14 %).
-                let limit = if refresh == default { 0.001 } else { 0.005 };
-                assert!(dt.abs() < limit && dp.abs() < limit);
+                // 0.5 % is the accuracy asked of wake management (mean forces against a run
+                // that keeps the full wake at every step). The refresh is held to a fifth of
+                // that (our choice, so that it costs little of the allowance).
+                assert!(dt.abs() < 0.001 && dp.abs() < 0.001);
             }
         }
     }
+}
+
+#[test]
+fn far_wake_extrapolation_is_second_order() {
+    // The particle positions after three cycles of the default tandem case (every particle
+    // kept), against the run that evaluates every particle at every step. The median distance is
+    // taken: a few particles in the rolled-up vortex cores drift apart chaotically whatever the
+    // scheme. The extrapolated velocity is second order in time, so the error grows as the
+    // square of the refresh interval (ratio 4 from 4 to 8 steps); holding the last evaluated
+    // velocity instead (first order) gives ratio 2.
+    let mut case = tandem();
+    case.numerics.wake_merge = 0.0;
+    case.numerics.cycles = 3;
+    let positions = |refresh: usize| {
+        let mut c = case.clone();
+        c.numerics.far_wake_refresh = refresh;
+        let mut sim = Simulation::new(&c).expect("valid case");
+        sim.run_to_end();
+        let (x, y, _) = sim.particles();
+        (x.to_vec(), y.to_vec())
+    };
+    let every = positions(1);
+    let median_error = |refresh: usize| {
+        let (x, y) = positions(refresh);
+        assert_eq!(x.len(), every.0.len());
+        let mut d: Vec<f64> = (0..x.len())
+            .map(|i| ((x[i] - every.0[i]).powi(2) + (y[i] - every.1[i]).powi(2)).sqrt())
+            .collect();
+        d.sort_by(f64::total_cmp);
+        d[d.len() / 2]
+    };
+    let (e4, e8) = (median_error(4), median_error(8));
+    eprintln!(
+        "far-wake refresh: median position error {e4:.3e} m at 4 steps, {e8:.3e} m at 8 (ratio {:.2})",
+        e8 / e4
+    );
+    // An observed order of at least 1.5 (ratio 2^1.5 = 2.83) tells second order (ratio 4) from
+    // first (ratio 2). Measured: 3.26; with the last evaluated velocity held, 1.81.
+    assert!(e8 / e4 > 2f64.powf(1.5), "ratio {}", e8 / e4);
+    // And the error stays small against the 5 mm the stream moves in one step.
+    assert!(e8 < 5e-3, "{e8}");
 }
