@@ -147,8 +147,8 @@ test("every control is reachable and changeable from the keyboard", async () => 
     await openReady(page, server.origin);
     await page.click("#run-toggle"); // pause, so the checks below see settled values
     const names = await page.$$eval("#controls [name]", (els) => els.map((e) => e.name));
-    // Flow 4, fore foil 8, hind foil 11 (with phase, gap, offset), numerics 7.
-    assert.equal(names.length, 30, `named controls: ${names.join(", ")}`);
+    // Flow 4, fore foil 8, hind foil 11 (with phase, gap, offset), numerics 8.
+    assert.equal(names.length, 31, `named controls: ${names.join(", ")}`);
     for (const must of ["flow.speed", "flow.water", "flow.temperature", "frequency", "foils.0.chord", "foils.1.phase", "foils.1.x", "foils.1.y"]) {
       assert.ok(names.includes(must), `no control named ${must}`);
     }
