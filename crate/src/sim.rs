@@ -119,9 +119,10 @@ fn par_rows<T: Send, F: Fn(usize, &mut [f64]) -> T + Sync + Send>(
 pub const MERGE_CLEAR_CHORDS: f64 = 2.0;
 
 /// Largest chords. Particles farther than this from every foil's chord line are the far wake of
-/// `numerics.far_wake_refresh`: their velocity is evaluated only every that many steps. (At 2
-/// chords with a refresh of 4 steps the high-Strouhal example's mean thrust moved by 0.06 %
-/// from the every-step run; at 4 chords with 8 steps by 0.04 %, in 30 % less time.)
+/// `numerics.far_wake_refresh`: their velocity is evaluated only every that many steps. (In a
+/// 20-cycle run of the high-Strouhal example with every particle kept, mean thrust moved from the
+/// every-step run by 0.06 % at 2 chords with a refresh of 4 steps, by 0.04 % at 4 chords with 8
+/// steps, which took 30 % less time on the 22-cycle unmerged tandem run.)
 pub const REFRESH_CLEAR_CHORDS: f64 = 4.0;
 
 /// Opening ratio of the fast summation (cell radius over distance).
