@@ -515,15 +515,11 @@ impl Wake {
         self.owner.push(owner);
     }
 
-    /// m/s. Particle `i`'s velocity at step `n` from its last evaluation and its change per
-    /// step (linear extrapolation; the evaluated velocity itself at its own step).
-    fn velocity_at_step(&self, i: usize, n: usize) -> [f64; 2] {
+    /// m/s. Particle `i`'s velocity `steps` after its last evaluation, extrapolated along its
+    /// change per step (its evaluated velocity itself at 0: `du` is always finite).
+    fn extrapolated(&self, i: usize, steps: f64) -> [f64; 2] {
         let (u, du) = (self.u_prev[i], self.du[i]);
-        if n == self.evaluated[i] {
-            return u;
-        }
-        let s = n as f64 - self.evaluated[i] as f64;
-        [u[0] + s * du[0], u[1] + s * du[1]]
+        [u[0] + steps * du[0], u[1] + steps * du[1]]
     }
 
     /// m/s. Velocity induced at `p` by all particles (direct Biot-Savart sum of Gaussian
@@ -594,7 +590,11 @@ impl Wake {
         // Both velocities at the later of the two evaluations (the same step unless one is a
         // far-wake particle between its evaluations).
         let n = self.evaluated[i].max(self.evaluated[j]);
-        let (ui, uj) = (self.velocity_at_step(i, n), self.velocity_at_step(j, n));
+        let after = |k: usize| (n - self.evaluated[k]) as f64;
+        let (ui, uj) = (
+            self.extrapolated(i, after(i)),
+            self.extrapolated(j, after(j)),
+        );
         self.u_prev[j] = [(gj * uj[0] + gi * ui[0]) / g, (gj * uj[1] + gi * ui[1]) / g];
         let (di, dj) = (self.du[i], self.du[j]);
         self.du[j] = [(gj * dj[0] + gi * di[0]) / g, (gj * dj[1] + gi * di[1]) / g];
@@ -1590,32 +1590,28 @@ impl Simulation {
                 })
                 .collect()
         };
-        // On a full step, far from a foil (its whole expansion) or from a group (its moments),
-        // their velocity enters the tree's local expansions: bit `bi` of a particle's mask is
-        // foil `bi`, bit `nb + bi` group `bi`, set where the tree left it out and it is added
-        // here.
-        let order = tree.order();
-        let moments: Vec<Vec<Complex<f64>>> = if full {
-            groups.iter().map(|g| g.moments(order)).collect()
-        } else {
-            Vec::new()
-        };
-        let mut far: Vec<fast::FarField> = Vec::new();
-        if full {
-            far.extend(expansions.iter().map(|e| fast::FarField {
-                centre: e.whole.centre,
-                radius: e.whole.radius,
-                clearance: e.whole.clearance,
-                moments: &e.whole.moments,
-            }));
+        let from_tree: Vec<([f64; 2], u32)> = if full {
+            // Far from a foil (its whole expansion) or from a group (its moments), their
+            // velocity enters the tree's local expansions: bit `bi` of a particle's mask is foil
+            // `bi`, bit `nb + bi` group `bi`, set where the tree left it out and it is added
+            // below.
+            let order = tree.order();
+            let moments: Vec<Vec<Complex<f64>>> = groups.iter().map(|g| g.moments(order)).collect();
+            let mut far: Vec<fast::FarField> = expansions
+                .iter()
+                .map(|e| fast::FarField {
+                    centre: e.whole.centre,
+                    radius: e.whole.radius,
+                    clearance: e.whole.clearance,
+                    moments: &e.whole.moments,
+                })
+                .collect();
             far.extend(
                 groups
                     .iter()
                     .zip(&moments)
                     .map(|(g, m)| g.far_field(m, TREE_TOLERANCE)),
             );
-        }
-        let from_tree: Vec<([f64; 2], u32)> = if full {
             let (at_free, masks) = tree.velocity_at_elements_with(&far);
             let mut at_free = at_free.into_iter().zip(masks);
             (0..np)
@@ -1688,9 +1684,7 @@ impl Simulation {
                 w.evaluated[i] = n;
                 step
             } else {
-                let (u, du) = (w.u_prev[i], w.du[i]);
-                let s = (n - w.evaluated[i]) as f64 + 0.5;
-                [u[0] + s * du[0], u[1] + s * du[1]]
+                w.extrapolated(i, (n - w.evaluated[i]) as f64 + 0.5)
             };
             w.x[i] += self.dt * step[0];
             w.y[i] += self.dt * step[1];
