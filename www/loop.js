@@ -3,10 +3,11 @@
 // factor calls for (capped, so a slow machine falls behind instead of spiralling), with at most
 // one request in flight (and, when a batch comes back while the run owes steps, the owed steps are
 // asked for at once rather than at the next frame). At the fastest speed ("max") two batches are
-// kept in flight (main.js), each about two display frames of work, so that the worker never waits
-// for the page: the view is redrawn about every other frame (on a 2-core machine drawing every
-// frame took more from the solver than it gave; measured in the page, see DEVELOPERS.md). The
-// physics time step comes from the case, never from the frame time.
+// kept in flight (main.js), each about one display frame of work less 3 ms, so that the worker
+// never waits for the page and a new state arrives for every frame: the view is redrawn at the
+// display rate. (Until the drawing was made cheaper, batches of two frames and a redraw every
+// other frame gave the solver more steps on two cores; measured in the page, see DEVELOPERS.md.)
+// The physics time step comes from the case, never from the frame time.
 
 export class Loop {
   /** @param {(dtSeconds: number, nowMs: number) => void} onFrame */
@@ -66,9 +67,9 @@ export class StepPacer {
     if (dtReal > 0) this.frameMs = 0.9 * this.frameMs + 0.1 * Math.min(100, dtReal * 1000);
     this.accumulated += dtReal * speed;
   }
-  /** A batch at the fastest speed: as many steps as fit in two display frames less 3 ms (at least
+  /** A batch at the fastest speed: as many steps as fit in one display frame less 3 ms (at least
    * one step; the worker stops before a step that would overrun the budget). */
   fastest() {
-    return { steps: 1e6, budgetMs: Math.max(4, 2 * this.frameMs - 3) };
+    return { steps: 1e6, budgetMs: Math.max(4, this.frameMs - 3) };
   }
 }

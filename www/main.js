@@ -67,6 +67,13 @@ let refSummaries = [];
 const REFERENCE_LEAD = 2;
 let refAllowed = 0; // the last allowance sent to the reference worker (cycles)
 let lastSummary = null;
+// The clock, step, cycle and particle readouts change with every batch (up to 60 times a second
+// at the fastest speed); rewriting their text that often cost the page's thread more than
+// drawing the wake's particles (measured in the page, DEVELOPERS.md), so they are written at most
+// every CLOCK_MS while the run goes on (see flushClock).
+const CLOCK_MS = 100;
+let clockDue = null; // the clock not yet shown: { steps, time (s), particles }
+let clockShownAt = -Infinity; // ms, performance.now() of the last write
 const perf = { steps: 0, stepMs: 0, draws: 0, frames: 0, since: performance.now() };
 
 const main = new SolverClient("solver", onSolver, fault);
@@ -212,7 +219,7 @@ function started(msg) {
     refAllowed = msg.stepsPerCycle > 0 ? REFERENCE_LEAD : Infinity;
     reference.post({ type: "reference", token: refToken, caseJson: JSON.stringify(PageState.singleFoilCase(c, 1)), cycles: refAllowed });
   }
-  updateClock(0, msg.time);
+  updateClock(0, msg.time, 0, true);
   setRunState();
   if (!faulted) $("wake-message").hidden = true;
   document.body.dataset.ready = "true";
@@ -236,7 +243,7 @@ function frame(msg) {
     }
   }
   wake.setScene(msg.outlines, msg.particles);
-  updateClock(msg.stepsTaken, msg.time, Math.floor(msg.particles.length / 3));
+  updateClock(msg.stepsTaken, msg.time, Math.floor(msg.particles.length / 3), msg.finished);
   // The solver worker's WebAssembly memory (bytes), for the benchmark's memory check.
   if (msg.memoryBytes) document.body.dataset.solverMemory = String(msg.memoryBytes);
   if (msg.summary) {
@@ -274,7 +281,22 @@ function showRelative() {
   readouts.showRelative(lastSummary.summary.foils[1], single ? single.foils[0] : null, cycles);
 }
 
-function updateClock(steps, time, particles = 0) {
+/** Notes the run's clock and particle count; shown now when `now` is set (a new run, or the
+ * batch that finishes it), otherwise by flushClock. */
+function updateClock(steps, time, particles = 0, now = false) {
+  clockDue = { steps, time, particles };
+  if (now) clockShownAt = -Infinity;
+  flushClock(performance.now());
+}
+
+/** Writes the noted clock: at most every CLOCK_MS while the run goes on, at once when it is
+ * paused or finished (so a readout never lags a stopped run). */
+function flushClock(now) {
+  if (!clockDue || !run) return;
+  if (state.running && !run.finished && now - clockShownAt < CLOCK_MS) return;
+  const { steps, time, particles } = clockDue;
+  clockDue = null;
+  clockShownAt = now;
   const setStat = (k, text, value) => {
     const e = document.querySelector(`[data-stat="${k}"]`);
     e.textContent = text;
@@ -345,6 +367,7 @@ const loop = new Loop((dt, now) => {
       request(1, 1000);
     }
   } else askForSteps();
+  flushClock(now);
   let drew = false;
   if (wake.needsDraw) { wake.draw(); drew = true; }
   for (const p of Object.values(plots)) if (p.needsDraw) { p.draw(); drew = true; }

@@ -2,11 +2,14 @@
 // coloured by rotation sense and shaded by strength. World coordinates (*World) are metres,
 // flow along +x, y up; the one y-flip is in toCssY().
 import { HiDpiCanvas, niceStep } from "./canvas.js";
+import { stampDisc } from "./discs.js";
 
 const BG = "#0f1822";
 const CCW = [255, 162, 76]; // counter-clockwise, circulation > 0
 const CW = [92, 200, 245]; // clockwise, circulation < 0
-const SHADES = 6; // strength bins per sense, one fill per bin
+const SHADES = 6; // strength bins per sense, shaded from faint to full
+// BG as one RGBA pixel in the byte order of the platform (ImageData is R, G, B, A in memory).
+const BG_PIXEL = new Uint32Array(new Uint8ClampedArray([0x0f, 0x18, 0x22, 0xff]).buffer)[0];
 const FOIL_COLOURS = ["#2bb3b9", "#e06a73", "#c7b96b", "#9b8fe0", "#7fc77f", "#e0a15c", "#d07fc0", "#8fb3d9"];
 
 export class WakeView {
@@ -22,7 +25,7 @@ export class WakeView {
     this.coreWorld = 0.005;
     this.userMoved = false;
     this.needsDraw = true;
-    this.binCounts = new Int32Array(2 * SHADES);
+    this.image = null; // ImageData of the background and particles, the canvas's size
     this.wireInput();
   }
 
@@ -115,44 +118,54 @@ export class WakeView {
 
   draw() {
     this.needsDraw = false;
-    const ctx = this.surface.begin(BG);
     const w = this.surface.widthCss, h = this.surface.heightCss;
-    this.drawParticles(ctx);
+    // The background and the particles are written as pixels, then the foils, labels and scale
+    // are drawn over them with the canvas's paths and text.
+    this.drawBackgroundAndParticles();
+    const ctx = this.surface.ctx;
+    ctx.setTransform(this.surface.dpr, 0, 0, this.surface.dpr, 0, 0);
     this.drawFoils(ctx);
     this.drawScale(ctx, w, h);
   }
 
-  drawParticles(ctx) {
+  /**
+   * Fills the canvas with the background and the particles as discs, written straight into an
+   * image buffer (one `putImageData` a frame). The background and 450 particles take 0.6 ms a
+   * frame so, against 2.5 ms with the canvas's own fill and arc fills in a software rasteriser
+   * (11 ms against 3.4 ms for 4,000 particles in view; measured in headless Chromium,
+   * DEVELOPERS.md), and drawing at the display rate on two cores cannot afford the difference. A disc's rim pixels are blended by their covered fraction (discs.js), so the
+   * discs keep the smooth edges of the canvas's anti-aliased fills.
+   */
+  drawBackgroundAndParticles() {
+    const { canvas, dpr } = this.surface;
+    const W = canvas.width, H = canvas.height;
+    if (!this.image || this.image.width !== W || this.image.height !== H) {
+      this.image = this.surface.ctx.createImageData(W, H);
+      this.pixels = new Uint32Array(this.image.data.buffer);
+    }
+    const bytes = this.image.data;
+    this.pixels.fill(BG_PIXEL);
     const p = this.particles;
     const n = Math.floor(p.length / 3);
-    if (n === 0) return;
     let gMax = 0;
     for (let i = 0; i < n; i++) gMax = Math.max(gMax, Math.abs(p[2 * n + i]));
-    if (!(gMax > 0)) return;
-    const rCss = Math.min(4.5, Math.max(1.3, 0.7 * this.coreWorld * this.cssPerMetre));
-    const w = this.surface.widthCss, h = this.surface.heightCss;
-    // One path per (sense, strength bin): at most 2 * SHADES fills per frame.
-    for (let bin = 0; bin < 2 * SHADES; bin++) {
-      const sense = bin < SHADES ? CCW : CW;
-      const level = bin % SHADES;
-      ctx.beginPath();
-      let any = false;
+    if (n > 0 && gMax > 0) {
+      const r = dpr * Math.min(4.5, Math.max(1.3, 0.7 * this.coreWorld * this.cssPerMetre)); // device px
+      const reach = r + 0.5;
+      const scale = this.cssPerMetre * dpr; // device px per metre
+      const ox = (this.surface.widthCss / 2) * dpr, oy = (this.surface.heightCss / 2) * dpr;
+      const [cx, cy] = this.centreWorld;
       for (let i = 0; i < n; i++) {
         const g = p[2 * n + i];
-        if ((g >= 0) !== (bin < SHADES)) continue;
-        const s = Math.min(SHADES - 1, Math.floor((Math.abs(g) / gMax) * SHADES));
-        if (s !== level) continue;
-        const x = this.toCssX(p[i]), y = this.toCssY(p[n + i]);
-        if (x < -5 || y < -5 || x > w + 5 || y > h + 5) continue;
-        ctx.moveTo(x + rCss, y);
-        ctx.arc(x, y, rCss, 0, 2 * Math.PI);
-        any = true;
+        // Device-pixel position; pixel (k, j) covers [k, k + 1) x [j, j + 1).
+        const x = (p[i] - cx) * scale + ox, y = oy - (p[n + i] - cy) * scale;
+        if (x < -reach || y < -reach || x > W + reach || y > H + reach) continue;
+        const level = Math.min(SHADES - 1, Math.floor((Math.abs(g) / gMax) * SHADES));
+        const alpha = 0.22 + 0.78 * Math.sqrt((level + 1) / SHADES);
+        stampDisc(bytes, W, H, x, y, r, g >= 0 ? CCW : CW, alpha);
       }
-      if (!any) continue;
-      const alpha = 0.22 + 0.78 * Math.sqrt((level + 1) / SHADES);
-      ctx.fillStyle = `rgba(${sense[0]},${sense[1]},${sense[2]},${alpha.toFixed(3)})`;
-      ctx.fill();
     }
+    this.surface.ctx.putImageData(this.image, 0, 0);
   }
 
   drawFoils(ctx) {
