@@ -1,7 +1,8 @@
 // Benchmark helper for `cargo xtask bench`: opens the built site in headless Chromium and prints
 // one JSON line with the page's own solver steps per second (per second of the worker's computing,
 // and per second of wall time) and frame rate (read from its status readouts once a second, median
-// of the readings taken while the run was going, at the fastest speed) and the memory:
+// of the readings taken while the run was going, at the fastest speed; beside it the display's
+// own rate, the animation callbacks per second, which the frame rate is to match) and the memory:
 // * `default`: the default case run for 100 cycles through a link (its own 8 cycles end within
 //   about a second at full speed, before the first reading; far-wake merging keeps the wake at
 //   about 230 to 460 particles);
@@ -39,6 +40,7 @@ async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
   const sps = [];
   const wall = [];
   const fps = [];
+  const display = [];
   let particles = 0;
   const counts = [];
   for (let i = 0; i < seconds; i++) {
@@ -47,6 +49,7 @@ async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
     sps.push(await stat("steps_per_second"));
     wall.push(Number(await page.getAttribute('[data-stat="steps_per_second"]', "data-wall")));
     fps.push(await stat("frame_rate"));
+    display.push(Number(await page.getAttribute('[data-stat="frame_rate"]', "data-callbacks")));
     particles = await stat("particles");
     counts.push(particles);
   }
@@ -56,7 +59,7 @@ async function measure(page, { minParticles = 0, seconds = 8 } = {}) {
   };
   const stepsEnd = await stat("step");
   return {
-    steps_per_second: median(sps), wall_steps_per_second: median(wall), frame_rate: median(fps), samples: sps.length, particles, particles_low: Math.min(...counts), particles_high: Math.max(...counts), steps: stepsEnd,
+    steps_per_second: median(sps), wall_steps_per_second: median(wall), frame_rate: median(fps), display_rate: median(display), samples: sps.length, particles, particles_low: Math.min(...counts), particles_high: Math.max(...counts), steps: stepsEnd,
     heap_mb_start: heapStart, heap_mb_end: await heap(), solver_mb_start: solverStart, solver_mb_end: await solverMb(),
   };
 }

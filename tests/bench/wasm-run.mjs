@@ -1,5 +1,6 @@
 // Benchmark helper for `cargo xtask bench`: runs a case file to the end in the wasm build under
-// node, three times, and prints the fastest wall time in seconds (one number on stdout).
+// node, FINWAKE_RUNS times (default 3), and prints the fastest wall time in seconds (one number
+// on stdout).
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 
@@ -9,7 +10,8 @@ const m = await import(join(PKG, "finwake.js"));
 await m.default({ module_or_path: readFileSync(join(PKG, "finwake_bg.wasm")) });
 const text = readFileSync(CASE, "utf8");
 let best = Infinity;
-for (let rep = 0; rep < 3; rep++) {
+const runs = Number(process.env.FINWAKE_RUNS ?? 3);
+for (let rep = 0; rep < runs; rep++) {
   const t0 = performance.now();
   const sim = new m.WasmSim(text);
   while (!sim.isFinished()) sim.advance(50);
