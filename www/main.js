@@ -62,6 +62,11 @@ let inFlight = 0; // batches asked for and not yet answered
 let stepOnce = false;
 let refToken = 0;
 let refSummaries = [];
+// The single-foil case of the reference run (JSON) and the error it gave, if any. It leaves out
+// the hind foil's position and phase, so moving the spacing, offset or phase sliders keeps the
+// reference run (going on, or done) and its summaries instead of starting it again.
+let refCaseJson = null;
+let refError = null;
 // Whole cycles the single-foil reference may run ahead of the live run: it waits there instead
 // of taking a core from the live run (and the page's drawing) until it is done.
 const REFERENCE_LEAD = 2;
@@ -213,11 +218,21 @@ function started(msg) {
   controls.showCaseError(null);
   controls.showDerived(msg.derived);
   $("case-json").value = JSON.stringify(c, null, 2);
-  refSummaries = [];
   if (n >= 2) {
-    refToken += 1;
-    refAllowed = msg.stepsPerCycle > 0 ? REFERENCE_LEAD : Infinity;
-    reference.post({ type: "reference", token: refToken, caseJson: JSON.stringify(PageState.singleFoilCase(c, 1)), cycles: refAllowed });
+    const single = JSON.stringify(PageState.singleFoilCase(c, 1));
+    if (single !== refCaseJson) {
+      refCaseJson = single;
+      refError = null;
+      refSummaries = [];
+      refToken += 1;
+      refAllowed = msg.stepsPerCycle > 0 ? REFERENCE_LEAD : Infinity;
+      reference.post({ type: "reference", token: refToken, caseJson: single, cycles: refAllowed });
+    } else if (refError) {
+      readouts.relativeNote.textContent = refError;
+    }
+    // A kept reference waits where it is until the restarted live run comes within
+    // REFERENCE_LEAD cycles of it (allowReference only ever raises the allowance).
+    document.body.dataset.referenceRun = String(refToken);
   }
   updateClock(0, msg.time, 0, true);
   setRunState();
@@ -268,7 +283,8 @@ function onReference(msg) {
     if (msg.finished) refSummaries.final = msg.summary;
     showRelative();
   } else if (msg.type === "reference-error" && msg.token === refToken) {
-    readouts.relativeNote.textContent = `The single-foil reference could not run: ${msg.error.message}`;
+    refError = `The single-foil reference could not run: ${msg.error.message}`;
+    readouts.relativeNote.textContent = refError;
   }
 }
 

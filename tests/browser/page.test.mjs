@@ -142,6 +142,37 @@ test("the single-foil reference keeps at most two cycles ahead of a paused live 
   });
 });
 
+test("moving the hind foil's spacing or phase keeps the single-foil reference; changing its section starts a new one", async () => {
+  await withPage(async ({ page }) => {
+    await page.goto(`${server.origin}/#v1;foils=2;1.x=0.3;1.phase=90;cycles=4`);
+    await page.waitForSelector("body[data-ready]", { timeout: 60000 });
+    await page.selectOption('select[name="run.speed"]', "max");
+    await page.waitForSelector('body[data-run-state="finished"]', { timeout: 120000 });
+    await page.waitForFunction(() => document.body.dataset.referenceCycles === "4", null, { timeout: 60000 });
+    const first = await page.getAttribute("body", "data-reference-run");
+    const caseNow = () => page.evaluate(() => JSON.parse(document.querySelector("#case-json").value));
+    // The single-foil case leaves out the hind foil's position and phase. (The `foils.1.x`
+    // control is the gap from the fore foil's trailing edge, in its chords: 2.5 puts the hind
+    // foil's leading edge at 0.1 + 0.25 = 0.35 m.)
+    await page.fill('[name="foils.1.x"]', "2.5");
+    await page.fill('[name="foils.1.phase"]', "120");
+    await page.waitForFunction(() => { const c = JSON.parse(document.querySelector("#case-json").value); return Math.abs(c.foils[1].x - 0.35) < 1e-9 && c.foils[1].phase === 120; });
+    assert.equal(await page.getAttribute("body", "data-reference-run"), first, "the reference run was started again");
+    await page.waitForSelector('body[data-run-state="finished"]', { timeout: 120000 });
+    // The kept summaries give the ratios of the new case, as the command line does.
+    const caseObj = await caseNow();
+    const cli = simulateCli(caseObj);
+    const single = simulateCli({ ...caseObj, foils: [{ ...caseObj.foils[1], x: 0, y: 0, phase: 0 }] });
+    await page.waitForFunction(() => document.querySelector('[data-quantity="relative.thrust_ratio"]')?.dataset.value !== undefined);
+    assertSig3((await readout(page, "single.thrust")).text, single.foils[0].thrust, "single.thrust");
+    assertSig3((await readout(page, "relative.thrust_ratio")).text, cli.foils[1].thrust / single.foils[0].thrust, "relative.thrust_ratio");
+    // A new section is a new single-foil case.
+    await page.fill('[name="foils.1.chord"]', "0.12");
+    await page.waitForFunction(() => JSON.parse(document.querySelector("#case-json").value).foils[1].chord === 0.12);
+    assert.equal(Number(await page.getAttribute("body", "data-reference-run")), Number(first) + 1, "a new single-foil case should start a new reference run");
+  });
+});
+
 test("every control is reachable and changeable from the keyboard", async () => {
   await withPage(async ({ page, log }) => {
     await openReady(page, server.origin);
