@@ -131,10 +131,11 @@ export class WakeView {
   /**
    * Fills the canvas with the background and the particles as discs, written straight into an
    * image buffer (one `putImageData` a frame). The background and 450 particles take 0.6 ms a
-   * frame so, against 2.5 ms with the canvas's own fill and arc fills in a software rasteriser
-   * (11 ms against 3.4 ms for 4,000 particles in view; measured in headless Chromium,
-   * DEVELOPERS.md), and drawing at the display rate on two cores cannot afford the difference. A disc's rim pixels are blended by their covered fraction (discs.js), so the
-   * discs keep the smooth edges of the canvas's anti-aliased fills.
+   * frame this way against 2.5 ms with the canvas's own fill and arc fills in a software
+   * rasteriser (3.4 against 11 ms for 4,000 particles in view; measured in headless Chromium,
+   * DEVELOPERS.md): drawing at the display rate on two cores cannot afford the difference. A
+   * disc's rim pixels are blended by their covered fraction (discs.js), so the discs keep the
+   * smooth edges of the canvas's anti-aliased fills.
    */
   drawBackgroundAndParticles() {
     const { canvas, dpr } = this.surface;
@@ -152,13 +153,10 @@ export class WakeView {
     if (n > 0 && gMax > 0) {
       const r = dpr * Math.min(4.5, Math.max(1.3, 0.7 * this.coreWorld * this.cssPerMetre)); // device px
       const reach = r + 0.5;
-      const scale = this.cssPerMetre * dpr; // device px per metre
-      const ox = (this.surface.widthCss / 2) * dpr, oy = (this.surface.heightCss / 2) * dpr;
-      const [cx, cy] = this.centreWorld;
       for (let i = 0; i < n; i++) {
         const g = p[2 * n + i];
         // Device-pixel position; pixel (k, j) covers [k, k + 1) x [j, j + 1).
-        const x = (p[i] - cx) * scale + ox, y = oy - (p[n + i] - cy) * scale;
+        const x = this.toCssX(p[i]) * dpr, y = this.toCssY(p[n + i]) * dpr;
         if (x < -reach || y < -reach || x > W + reach || y > H + reach) continue;
         const level = Math.min(SHADES - 1, Math.floor((Math.abs(g) / gMax) * SHADES));
         const alpha = 0.22 + 0.78 * Math.sqrt((level + 1) / SHADES);
