@@ -122,9 +122,9 @@ pub fn bench() -> Result<()> {
     let page = page_script("page-rate.mjs")?;
     println!("page: {page}");
     let page_sps = number_after(&page, "\"steps_per_second\":").unwrap_or(f64::NAN);
-    let page_4000_sps =
-        number_after(&page, "\"wake_4000\":{\"steps_per_second\":").unwrap_or(f64::NAN);
-    let wake_4000 = &page[page.find("\"wake_4000\"").unwrap_or(0)..];
+    // The 4,000-particle run's figures: the keys after `"wake_4000"` in the page's JSON line.
+    let wake_4000 = &page[page.find("\"wake_4000\"").unwrap_or(page.len())..];
+    let page_4000_sps = number_after(wake_4000, "\"steps_per_second\":").unwrap_or(f64::NAN);
     let page_4000_fps = number_after(wake_4000, "\"frame_rate\":").unwrap_or(f64::NAN);
     let page_4000_display = number_after(wake_4000, "\"display_rate\":").unwrap_or(f64::NAN);
 
